@@ -1,0 +1,209 @@
+//! Command-line surface: argument definitions and dispatch. Presentation lives in `show`.
+
+mod bars;
+mod show;
+
+use std::path::PathBuf;
+use std::process::ExitCode;
+
+use clap::{Args as ClapArgs, Parser, Subcommand, ValueEnum};
+use plumb::error::{Error, ErrorClass};
+use plumb::ingest::{self, FormatChoice, HeaderChoice, LoadOptions};
+
+/// Exit codes (documented in the README).
+pub const EXIT_BAD_INPUT: u8 = 3;
+pub const EXIT_IO: u8 = 4;
+
+#[derive(Parser, Debug)]
+#[command(
+    name = "plumb",
+    version,
+    about = "Structure profiles of very large undirected networks, straight from edge-list dumps",
+    after_help = "Exit codes: 0 success, 2 bad arguments, 3 bad input, 4 I/O failure."
+)]
+pub struct Args {
+    /// Worker threads (default: all cores).
+    #[arg(long, global = true, value_name = "N")]
+    threads: Option<usize>,
+
+    /// No progress bars, even on a terminal.
+    #[arg(long, global = true)]
+    quiet: bool,
+
+    #[command(subcommand)]
+    command: Command,
+}
+
+#[derive(Subcommand, Debug)]
+enum Command {
+    /// Read an edge file and show what was read: sizes, cleaning counts, degrees, timings.
+    Intake {
+        #[command(flatten)]
+        input: InputArgs,
+        /// Print the intake report as JSON instead of text.
+        #[arg(long)]
+        json: bool,
+    },
+    /// Build the adjacency store and save it as a store file that reopens in place.
+    Pack {
+        #[command(flatten)]
+        input: InputArgs,
+        /// Where to write the store file.
+        #[arg(short = 'o', long = "out", value_name = "FILE")]
+        out: PathBuf,
+    },
+    /// Check every invariant of a store file (checksum, offsets, sorted symmetric lists).
+    Verify {
+        /// A store file written by `plumb pack`.
+        store: PathBuf,
+    },
+    /// Rebuild the shipped demo data (seeded; byte-identical on every machine).
+    DemoData {
+        /// Folder to write into.
+        #[arg(long, default_value = "demo-data/larkspur")]
+        out: PathBuf,
+        #[arg(long, default_value_t = 20261002)]
+        seed: u64,
+        /// How many weekly exports to write.
+        #[arg(long, default_value_t = 1)]
+        weeks: u32,
+    },
+}
+
+#[derive(ClapArgs, Debug)]
+struct InputArgs {
+    /// Edge list, Matrix Market or store file; plain, zstd or gzip (sniffed, not by name);
+    /// `-` reads standard input.
+    input: PathBuf,
+    /// Input grammar.
+    #[arg(long, value_enum, default_value_t = Grammar::Auto)]
+    format: Grammar,
+    /// Whether the first data line is a column header.
+    #[arg(long, value_enum, default_value_t = HeaderArg::Auto)]
+    header: HeaderArg,
+    /// Skip malformed lines (counted, first few shown) instead of stopping at the first.
+    #[arg(long)]
+    skip_malformed: bool,
+    /// Longest line accepted, in bytes.
+    #[arg(long, default_value_t = 1 << 20, value_name = "BYTES")]
+    max_line: usize,
+}
+
+#[derive(ValueEnum, Clone, Copy, Debug)]
+enum Grammar {
+    /// Matrix Market if the banner is there, else an edge list.
+    Auto,
+    /// Two ids per line.
+    Edges,
+    /// Matrix Market coordinate format.
+    Mtx,
+}
+
+#[derive(ValueEnum, Clone, Copy, Debug)]
+enum HeaderArg {
+    /// Guess from the first two data lines.
+    Auto,
+    /// The first data line is a header.
+    Skip,
+    /// There is no header line.
+    None,
+}
+
+impl InputArgs {
+    fn options(&self) -> LoadOptions {
+        LoadOptions {
+            format: match self.format {
+                Grammar::Auto => FormatChoice::Auto,
+                Grammar::Edges => FormatChoice::EdgeList,
+                Grammar::Mtx => FormatChoice::MatrixMarket,
+            },
+            header: match self.header {
+                HeaderArg::Auto => HeaderChoice::Auto,
+                HeaderArg::Skip => HeaderChoice::Skip,
+                HeaderArg::None => HeaderChoice::None,
+            },
+            skip_malformed: self.skip_malformed,
+            max_line: self.max_line,
+            piece_bytes: 0,
+        }
+    }
+}
+
+pub fn exit_code(e: &Error) -> ExitCode {
+    match e.class() {
+        ErrorClass::BadInput => ExitCode::from(EXIT_BAD_INPUT),
+        ErrorClass::Io => ExitCode::from(EXIT_IO),
+    }
+}
+
+pub fn run(args: Args) -> Result<ExitCode, Error> {
+    if let Some(t) = args.threads {
+        // Only fails if a pool exists already, which cannot happen this early.
+        let _ = rayon::ThreadPoolBuilder::new()
+            .num_threads(t.max(1))
+            .build_global();
+    }
+    let bars = bars::Bars::new(args.quiet);
+    match args.command {
+        Command::Intake { input, json } => {
+            let g = ingest::load(&input.input, &input.options(), &bars)?;
+            let text = if json {
+                show::intake_json(&g)
+            } else {
+                show::intake_text(&g)
+            };
+            print!("{text}");
+        }
+        Command::Pack { input, out } => {
+            let g = ingest::load(&input.input, &input.options(), &bars)?;
+            let t = std::time::Instant::now();
+            let bytes = plumb::store::write(&g, &out)?;
+            print!("{}", show::intake_text(&g));
+            println!(
+                "  {:<9}{} ({}) in {:.2} s",
+                "wrote",
+                out.display(),
+                show::bytes(bytes),
+                t.elapsed().as_secs_f64()
+            );
+        }
+        Command::Verify { store } => {
+            let t = std::time::Instant::now();
+            let g = plumb::store::open(&store)?;
+            let opened = t.elapsed().as_secs_f64();
+            g.csr.verify().map_err(|problem| Error::Store {
+                path: store.clone(),
+                problem,
+            })?;
+            println!(
+                "{}: ok — {} nodes, {} edges; checksum and layout checked on open ({:.3} s), \
+                 lists sorted and symmetric ({:.3} s)",
+                store.display(),
+                show::count(g.node_count() as u64),
+                show::count(g.edge_count()),
+                opened,
+                t.elapsed().as_secs_f64() - opened
+            );
+        }
+        Command::DemoData { out, seed, weeks } => {
+            std::fs::create_dir_all(&out).map_err(|e| Error::Io {
+                path: out.clone(),
+                action: "create folder",
+                source: e,
+            })?;
+            let platform = plumb::demo::Platform::default();
+            for week in 0..weeks {
+                let text = plumb::demo::weekly_export(&platform, seed, week);
+                let path = out.join(format!("replies-2026-W{}.tsv.zst", 40 + week));
+                let bytes = plumb::outfile::write_zstd_frames(&path, &text, 19, 1 << 20)?;
+                println!(
+                    "wrote {} ({} of text, {} compressed)",
+                    path.display(),
+                    show::bytes(text.len() as u64),
+                    show::bytes(bytes)
+                );
+            }
+        }
+    }
+    Ok(ExitCode::SUCCESS)
+}

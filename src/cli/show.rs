@@ -1,0 +1,207 @@
+//! Presentation of results as text and JSON.
+
+use std::fmt::Write as _;
+
+use plumb::Graph;
+use plumb::input::source::Compression;
+use plumb::intake::{IdKind, InputFormat};
+
+/// 1234567 -> "1,234,567".
+pub fn count(n: u64) -> String {
+    let s = n.to_string();
+    let mut out = String::with_capacity(s.len() + s.len() / 3);
+    for (i, c) in s.chars().enumerate() {
+        if i > 0 && (s.len() - i).is_multiple_of(3) {
+            out.push(',');
+        }
+        out.push(c);
+    }
+    out
+}
+
+/// Binary-prefixed size: "3.4 MiB".
+pub fn bytes(b: u64) -> String {
+    const UNITS: [&str; 5] = ["B", "KiB", "MiB", "GiB", "TiB"];
+    let mut v = b as f64;
+    let mut u = 0;
+    while v >= 1024.0 && u + 1 < UNITS.len() {
+        v /= 1024.0;
+        u += 1;
+    }
+    if u == 0 {
+        format!("{b} B")
+    } else {
+        format!("{v:.1} {}", UNITS[u])
+    }
+}
+
+fn row(out: &mut String, label: &str, text: impl AsRef<str>) {
+    let _ = writeln!(out, "  {label:<9}{}", text.as_ref());
+}
+
+pub fn intake_text(g: &Graph) -> String {
+    let i = &g.intake;
+    let mut out = String::new();
+    let _ = writeln!(out, "plumb intake · {}", i.source);
+    let codec = match i.compression {
+        Compression::None => "plain text".to_string(),
+        Compression::Zstd => match i.frames {
+            Some(f) if f > 1 => format!("zstd ({f} frames, decoded in parallel)"),
+            _ => "zstd (1 frame)".to_string(),
+        },
+        Compression::Gzip => "gzip".to_string(),
+    };
+    let grammar = match i.format {
+        InputFormat::EdgeList => "edge list",
+        InputFormat::MatrixMarket => "Matrix Market coordinate",
+    };
+    let ids = match i.id_kind {
+        IdKind::Integer => "integer ids",
+        IdKind::Text => "text ids",
+    };
+    let size = if i.compression == Compression::None {
+        bytes(i.input_bytes)
+    } else {
+        format!("{} → {} of text", bytes(i.input_bytes), bytes(i.text_bytes))
+    };
+    row(
+        &mut out,
+        "read",
+        format!("{size}, {codec}, {grammar}, {ids}"),
+    );
+    let mut lines = format!(
+        "{} = {} edge lines + {} comment + {} blank",
+        count(i.lines),
+        count(i.edge_lines),
+        count(i.comment_lines),
+        count(i.blank_lines)
+    );
+    if let Some(h) = &i.header_line {
+        let _ = write!(lines, " + 1 header {h:?}");
+    }
+    if i.malformed_skipped > 0 {
+        let _ = write!(
+            lines,
+            " + {} malformed (skipped)",
+            count(i.malformed_skipped)
+        );
+    }
+    row(&mut out, "lines", lines);
+    for b in &i.malformed_examples {
+        row(
+            &mut out,
+            "",
+            format!(
+                "  skipped line {} (byte {}): {} — {:?}",
+                count(b.line),
+                count(b.byte),
+                b.problem,
+                b.excerpt
+            ),
+        );
+    }
+    row(
+        &mut out,
+        "cleaned",
+        format!(
+            "{} self-loops dropped · {} repeated lines and {} reciprocal pairs merged",
+            count(i.self_loops),
+            count(i.repeated_lines),
+            count(i.reciprocal_pairs)
+        ),
+    );
+    if i.extra_column_lines > 0 {
+        row(
+            &mut out,
+            "columns",
+            format!(
+                "{} lines carried extra columns (ignored)",
+                count(i.extra_column_lines)
+            ),
+        );
+    }
+    row(
+        &mut out,
+        "graph",
+        format!(
+            "{} nodes · {} edges · {} isolated nodes",
+            count(i.nodes),
+            count(i.edges),
+            count(i.isolated_nodes)
+        ),
+    );
+    let d = g.degree_summary();
+    row(
+        &mut out,
+        "degree",
+        format!(
+            "min {} · mean {:.2} · max {}",
+            count(d.min as u64),
+            d.mean,
+            count(d.max as u64)
+        ),
+    );
+    let n = g.node_count().max(1) as f64;
+    let m = g.edge_count().max(1) as f64;
+    row(
+        &mut out,
+        "store",
+        format!(
+            "{} resident: {:.1} B per edge + {:.1} B per node (offsets and ids){}",
+            bytes(g.store_bytes()),
+            g.csr.targets().len() as f64 * 4.0 / m,
+            (g.csr.offsets().len() as f64 * 8.0 + g.ids.bytes() as f64) / n,
+            if g.csr.is_mapped() {
+                ", mapped from the store file"
+            } else {
+                ""
+            }
+        ),
+    );
+    if !i.stages.is_empty() {
+        let parts: Vec<String> = i
+            .stages
+            .iter()
+            .map(|s| format!("{} {:.2} s", s.name, s.seconds))
+            .collect();
+        row(
+            &mut out,
+            "time",
+            format!("{} = {:.2} s", parts.join(" · "), i.total_seconds()),
+        );
+    }
+    out
+}
+
+pub fn intake_json(g: &Graph) -> String {
+    #[derive(serde::Serialize)]
+    struct Out<'a> {
+        plumb_version: &'static str,
+        intake: &'a plumb::intake::Intake,
+        degree: plumb::graph::DegreeSummary,
+        store_bytes: u64,
+    }
+    let out = Out {
+        plumb_version: env!("CARGO_PKG_VERSION"),
+        intake: &g.intake,
+        degree: g.degree_summary(),
+        store_bytes: g.store_bytes(),
+    };
+    let mut s = serde_json::to_string_pretty(&out).unwrap_or_default();
+    s.push('\n');
+    s
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn formats() {
+        assert_eq!(count(0), "0");
+        assert_eq!(count(1234567), "1,234,567");
+        assert_eq!(count(100), "100");
+        assert_eq!(bytes(512), "512 B");
+        assert_eq!(bytes(3 * 1024 * 1024 + 400_000), "3.4 MiB");
+    }
+}

@@ -1,0 +1,133 @@
+//! Typed errors. Every input error carries where it happened (file, line, byte offset) so a user
+//! can open the file at the right place; the CLI maps the variants to exit codes.
+
+use std::path::PathBuf;
+
+/// Where in an input something went wrong. `line` is 1-based; `byte` is the 0-based offset of the
+/// start of that line in the (decompressed) text.
+#[derive(Debug, Clone, PartialEq, Eq)]
+pub struct Position {
+    pub line: u64,
+    pub byte: u64,
+    /// The offset counts decompressed bytes.
+    pub decoded: bool,
+}
+
+impl std::fmt::Display for Position {
+    fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
+        write!(f, "line {}, byte offset {}", self.line, self.byte)?;
+        if self.decoded {
+            f.write_str(" of the decompressed text")?;
+        }
+        Ok(())
+    }
+}
+
+/// The broad class of a failure, used by the CLI to choose an exit code.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum ErrorClass {
+    /// The input is malformed or violates a limit.
+    BadInput,
+    /// Reading or writing failed at the operating-system level.
+    Io,
+}
+
+#[derive(Debug, thiserror::Error)]
+pub enum Error {
+    #[error("{path}: cannot {action}: {source}")]
+    Io {
+        path: PathBuf,
+        action: &'static str,
+        #[source]
+        source: std::io::Error,
+    },
+
+    #[error("{path}: {pos}: {problem}; expected {expected} (line starts: {excerpt:?})")]
+    Malformed {
+        path: PathBuf,
+        pos: Position,
+        problem: String,
+        expected: &'static str,
+        excerpt: String,
+    },
+
+    #[error("{path}: {pos}: line is longer than the limit of {limit} bytes")]
+    LineTooLong {
+        path: PathBuf,
+        pos: Position,
+        limit: usize,
+    },
+
+    #[error("{path}: the input holds no edges and no nodes ({detail})")]
+    Empty { path: PathBuf, detail: String },
+
+    #[error("{path}: {format} stream is {problem} at compressed byte offset {offset}")]
+    Compressed {
+        path: PathBuf,
+        format: &'static str,
+        problem: String,
+        offset: u64,
+    },
+
+    #[error("{path}: {pos}: Matrix Market: {problem}")]
+    MatrixMarket {
+        path: PathBuf,
+        pos: Position,
+        problem: String,
+    },
+
+    #[error("{path}: more than {limit} distinct nodes; plumb indexes nodes with 32-bit integers")]
+    TooManyNodes { path: PathBuf, limit: u64 },
+
+    #[error("{path}: node {node} has more than {limit} edge lines; per-node degrees are 32-bit")]
+    DegreeTooLarge {
+        path: PathBuf,
+        node: String,
+        limit: u64,
+    },
+
+    #[error("{path}: not a usable store file: {problem}")]
+    Store { path: PathBuf, problem: String },
+
+    #[error("{path}: {problem}")]
+    Output { path: PathBuf, problem: String },
+}
+
+impl Error {
+    pub fn class(&self) -> ErrorClass {
+        match self {
+            Error::Io { .. } => ErrorClass::Io,
+            _ => ErrorClass::BadInput,
+        }
+    }
+
+    pub(crate) fn io(
+        path: impl Into<PathBuf>,
+        action: &'static str,
+        source: std::io::Error,
+    ) -> Self {
+        Error::Io {
+            path: path.into(),
+            action,
+            source,
+        }
+    }
+}
+
+pub type Result<T, E = Error> = std::result::Result<T, E>;
+
+/// Shorten a line for an error message without splitting a UTF-8 character.
+pub(crate) fn excerpt(line: &[u8]) -> String {
+    const MAX: usize = 60;
+    let line = line.strip_suffix(b"\r").unwrap_or(line);
+    if line.len() <= MAX {
+        return String::from_utf8_lossy(line).into_owned();
+    }
+    let mut s = String::from_utf8_lossy(&line[..MAX]).into_owned();
+    // A cut through a multi-byte character shows as U+FFFD; drop it rather than mislead.
+    while s.ends_with('\u{FFFD}') {
+        s.pop();
+    }
+    s.push('…');
+    s
+}

@@ -1,0 +1,260 @@
+//! The text edge-list line grammar, as pure functions over byte slices (no I/O, no allocation).
+//!
+//! A data line holds two node ids separated by spaces/tabs or one comma (with optional spaces around
+//! it); anything after the second id is an extra column (weight, timestamp, …) that is counted and
+//! ignored. Lines whose first non-blank byte is `#` or `%` are comments. A trailing `\r` is dropped.
+
+/// One node id as written in the file.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub struct Token<'a> {
+    /// The bytes as written.
+    pub raw: &'a [u8],
+    /// Its value when it is decimal digits only and fits in u64.
+    pub int: Option<u64>,
+}
+
+impl<'a> Token<'a> {
+    /// Same node under the file's id kind: by value for integer ids, by bytes for text ids.
+    #[inline]
+    pub fn same(&self, other: &Token, text_ids: bool) -> bool {
+        if text_ids {
+            self.raw == other.raw
+        } else {
+            self.int == other.int
+        }
+    }
+}
+
+/// What a line turned out to be.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum Line<'a> {
+    Blank,
+    Comment,
+    Edge {
+        a: Token<'a>,
+        b: Token<'a>,
+        /// True when at least one column follows the two ids.
+        extra: bool,
+    },
+}
+
+/// Why a line is not a valid edge line.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum Fault {
+    /// Only one field on the line.
+    OneField,
+    /// Two separators in a row (for example `1,,2`) leave an empty id.
+    EmptyField,
+    /// A control byte (NUL, a lone CR, …) inside an id.
+    ControlByte,
+}
+
+impl Fault {
+    pub fn problem(self) -> &'static str {
+        match self {
+            Fault::OneField => "only one field",
+            Fault::EmptyField => "an empty node id",
+            Fault::ControlByte => "a control character inside a node id",
+        }
+    }
+}
+
+/// What a valid edge line looks like, for error messages.
+pub const EXPECTED_EDGE: &str =
+    "two node ids separated by spaces, a tab or a comma (then optional extra columns)";
+
+#[inline]
+fn is_blank(b: u8) -> bool {
+    b == b' ' || b == b'\t'
+}
+
+#[inline]
+fn ends_token(b: u8) -> bool {
+    b == b' ' || b == b'\t' || b == b','
+}
+
+/// Read one token starting at `i` (which is not a separator). Returns the token and the index
+/// just past it. Integers are recognised while scanning so the common case touches each byte once.
+#[inline]
+fn token(line: &[u8], start: usize) -> Result<(Token<'_>, usize), Fault> {
+    let mut i = start;
+    let mut value: u64 = 0;
+    let mut int = true;
+    while i < line.len() {
+        let b = line[i];
+        if ends_token(b) {
+            break;
+        }
+        let d = b.wrapping_sub(b'0');
+        if d < 10 {
+            // Overflow makes it a text token (ids above 2^64-1 are still valid ids).
+            match value.checked_mul(10).and_then(|v| v.checked_add(d as u64)) {
+                Some(v) => value = v,
+                None => int = false,
+            }
+        } else {
+            if b < 0x20 || b == 0x7f {
+                return Err(Fault::ControlByte);
+            }
+            int = false;
+        }
+        i += 1;
+    }
+    let tok = Token {
+        raw: &line[start..i],
+        int: int.then_some(value),
+    };
+    Ok((tok, i))
+}
+
+/// Skip a separator: blanks with at most one comma among them. Returns the index of the next
+/// field, or `Err(EmptyField)` when a second comma shows an empty field.
+#[inline]
+fn separator(line: &[u8], mut i: usize) -> Result<usize, Fault> {
+    while i < line.len() && is_blank(line[i]) {
+        i += 1;
+    }
+    if i < line.len() && line[i] == b',' {
+        i += 1;
+        while i < line.len() && is_blank(line[i]) {
+            i += 1;
+        }
+        if i < line.len() && line[i] == b',' {
+            return Err(Fault::EmptyField);
+        }
+    }
+    Ok(i)
+}
+
+/// Parse one line (without its `\n`; a trailing `\r` is allowed).
+#[inline]
+pub fn parse_line(line: &[u8]) -> Result<Line<'_>, Fault> {
+    let line = match line.last() {
+        Some(b'\r') => &line[..line.len() - 1],
+        _ => line,
+    };
+    let mut i = 0;
+    while i < line.len() && is_blank(line[i]) {
+        i += 1;
+    }
+    if i == line.len() {
+        return Ok(Line::Blank);
+    }
+    match line[i] {
+        b'#' | b'%' => return Ok(Line::Comment),
+        b',' => return Err(Fault::EmptyField),
+        _ => {}
+    }
+    let (a, end) = token(line, i)?;
+    let i = separator(line, end)?;
+    if i == line.len() {
+        return Err(Fault::OneField);
+    }
+    let (b, end) = token(line, i)?;
+    // Anything but blanks after the second id is an extra column.
+    let extra = line[end..].iter().any(|&c| !is_blank(c));
+    Ok(Line::Edge { a, b, extra })
+}
+
+/// Decide whether the first data line of a file is a column header rather than an edge.
+///
+/// A header is a line with at least one non-integer id where either the next data line has two
+/// integer ids, or its first two fields are common column names. A text-id file whose first line
+/// happens to look like data is left alone; the `--header` flag overrides this guess.
+pub fn looks_like_header(first: &[u8], next: Option<&[u8]>) -> bool {
+    let Ok(Line::Edge { a, b, .. }) = parse_line(first) else {
+        return false;
+    };
+    if a.int.is_some() && b.int.is_some() {
+        return false;
+    }
+    let next_is_int = matches!(
+        next.map(parse_line),
+        Some(Ok(Line::Edge { a, b, .. })) if a.int.is_some() && b.int.is_some()
+    );
+    let named = |t: Token| t.int.is_none() && is_column_name(t.raw);
+    next_is_int || (named(a) && named(b))
+}
+
+fn is_column_name(s: &[u8]) -> bool {
+    const NAMES: &[&str] = &[
+        "source", "target", "src", "dst", "dest", "from", "to", "u", "v", "node", "node1", "node2",
+        "node_1", "node_2", "id1", "id2", "head", "tail", "left", "right", "a", "b", "i", "j",
+        "start", "end", "sender", "receiver", "caller", "callee", "parent", "child",
+    ];
+    let mut s = s.trim_ascii();
+    while let [b'"' | b'\'', rest @ ..] = s {
+        s = rest;
+    }
+    while let [rest @ .., b'"' | b'\''] = s {
+        s = rest;
+    }
+    NAMES.iter().any(|n| n.as_bytes().eq_ignore_ascii_case(s))
+        || s.eq_ignore_ascii_case(b"from_id")
+        || s.eq_ignore_ascii_case(b"to_id")
+        || s.to_ascii_lowercase().ends_with(b"_id")
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[derive(Debug, PartialEq)]
+    enum T<'a> {
+        Int(u64),
+        Text(&'a [u8]),
+    }
+
+    fn t(t: Token<'_>) -> T<'_> {
+        match t.int {
+            Some(v) => T::Int(v),
+            None => T::Text(t.raw),
+        }
+    }
+
+    fn edge(line: &str) -> (T<'_>, T<'_>, bool) {
+        match parse_line(line.as_bytes()) {
+            Ok(Line::Edge { a, b, extra }) => (t(a), t(b), extra),
+            other => panic!("{line:?} parsed as {other:?}"),
+        }
+    }
+
+    #[test]
+    fn separators_and_columns() {
+        assert_eq!(edge("1 2"), (T::Int(1), T::Int(2), false));
+        assert_eq!(edge("1\t2\r"), (T::Int(1), T::Int(2), false));
+        assert_eq!(edge("  7 , 8  "), (T::Int(7), T::Int(8), false));
+        assert_eq!(edge("7,8,0.5"), (T::Int(7), T::Int(8), true));
+        assert_eq!(edge("7 8 1700000000 x"), (T::Int(7), T::Int(8), true));
+        assert_eq!(
+            edge("alice bob"),
+            (T::Text(b"alice"), T::Text(b"bob"), false)
+        );
+        assert_eq!(
+            edge("18446744073709551615 18446744073709551616"),
+            (T::Int(u64::MAX), T::Text(b"18446744073709551616"), false)
+        );
+    }
+
+    #[test]
+    fn comments_blanks_faults() {
+        assert_eq!(parse_line(b""), Ok(Line::Blank));
+        assert_eq!(parse_line(b" \t\r"), Ok(Line::Blank));
+        assert_eq!(parse_line(b"# 1 2"), Ok(Line::Comment));
+        assert_eq!(parse_line(b"  % x"), Ok(Line::Comment));
+        assert_eq!(parse_line(b"12"), Err(Fault::OneField));
+        assert_eq!(parse_line(b"12 ,"), Err(Fault::OneField));
+        assert_eq!(parse_line(b"1,,2"), Err(Fault::EmptyField));
+        assert_eq!(parse_line(b",2"), Err(Fault::EmptyField));
+        assert_eq!(parse_line(b"1\x002 3"), Err(Fault::ControlByte));
+    }
+
+    #[test]
+    fn header_guess() {
+        assert!(looks_like_header(b"source,target", Some(b"1,2")));
+        assert!(looks_like_header(b"from to weight", Some(b"ann bo 1")));
+        assert!(looks_like_header(b"member_id,peer_id", None));
+        assert!(!looks_like_header(b"ann bo", Some(b"cy dee")));
+        assert!(!looks_like_header(b"1 2", Some(b"3 4")));
+    }
+}

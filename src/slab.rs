@@ -1,0 +1,62 @@
+//! An array that is either owned or borrowed from a read-only memory map, so a store file can be
+//! used in place without copying.
+
+use std::ops::Deref;
+use std::sync::Arc;
+
+use bytemuck::Pod;
+
+pub enum Slab<T: Pod> {
+    Owned(Vec<T>),
+    Mapped {
+        map: Arc<memmap2::Mmap>,
+        /// Byte offset of the first element; checked for alignment when the slab is made.
+        start: usize,
+        len: usize,
+    },
+}
+
+impl<T: Pod> Slab<T> {
+    /// Borrow `len` elements at byte `start` of `map`; `None` if out of bounds or misaligned.
+    pub fn mapped(map: &Arc<memmap2::Mmap>, start: usize, len: usize) -> Option<Self> {
+        let bytes = len.checked_mul(std::mem::size_of::<T>())?;
+        let end = start.checked_add(bytes)?;
+        let region = map.get(start..end)?;
+        bytemuck::try_cast_slice::<u8, T>(region).ok()?;
+        Some(Slab::Mapped {
+            map: Arc::clone(map),
+            start,
+            len,
+        })
+    }
+
+    pub fn is_mapped(&self) -> bool {
+        matches!(self, Slab::Mapped { .. })
+    }
+}
+
+impl<T: Pod> Deref for Slab<T> {
+    type Target = [T];
+    #[inline]
+    fn deref(&self) -> &[T] {
+        match self {
+            Slab::Owned(v) => v,
+            Slab::Mapped { map, start, len } => {
+                let bytes = &map[*start..*start + *len * std::mem::size_of::<T>()];
+                bytemuck::cast_slice(bytes)
+            }
+        }
+    }
+}
+
+impl<T: Pod> From<Vec<T>> for Slab<T> {
+    fn from(v: Vec<T>) -> Self {
+        Slab::Owned(v)
+    }
+}
+
+impl<T: Pod + std::fmt::Debug> std::fmt::Debug for Slab<T> {
+    fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
+        write!(f, "Slab(len {}, mapped {})", self.len(), self.is_mapped())
+    }
+}
