@@ -83,7 +83,12 @@ pub fn write_zstd_frames(dest: &Path, data: &[u8], level: i32, frame_bytes: usiz
     use rayon::prelude::*;
     let frames: Vec<std::io::Result<Vec<u8>>> = data
         .par_chunks(frame_bytes.max(1))
-        .map(|c| zstd::bulk::compress(c, level))
+        .map(|c| {
+            // A content checksum lets readers tell corruption from data.
+            let mut z = zstd::bulk::Compressor::new(level)?;
+            z.include_checksum(true)?;
+            z.compress(c)
+        })
         .collect();
     let mut out = AtomicFile::create(dest)?;
     let mut total = 0u64;

@@ -4,7 +4,7 @@
 //! do not depend on which worker saw which piece.
 
 use std::sync::Mutex;
-use std::sync::atomic::{AtomicBool, AtomicUsize, Ordering};
+use std::sync::atomic::{AtomicUsize, Ordering};
 use std::sync::mpsc::sync_channel;
 
 use crate::input::source::{self, Compression, DecodeInfo, StreamFault, TextChunk};
@@ -48,7 +48,13 @@ pub fn run<W: Send>(
     work: impl Fn(&mut W, usize, &[u8], u64) -> bool + Sync,
 ) -> Result<(Vec<W>, DecodeInfo), StreamFault> {
     let threads = threads.max(1);
-    let stop = AtomicBool::new(false);
+    // Index of the earliest piece that asked to stop; later pieces are skipped, earlier ones
+    // always run (their line counts place the error).
+    let stop_at = AtomicUsize::new(usize::MAX);
+    let stop = |i: usize| {
+        stop_at.fetch_min(i, Ordering::Relaxed);
+    };
+    let stopped_before = |i: usize| stop_at.load(Ordering::Relaxed) < i;
     match src.compression {
         Compression::None => {
             let pieces = split_at_newlines(src.data, src.piece);
@@ -58,11 +64,14 @@ pub fn run<W: Send>(
                     .map(|_| {
                         s.spawn(|| {
                             let mut st = init();
-                            while !stop.load(Ordering::Relaxed) {
+                            loop {
                                 let i = next.fetch_add(1, Ordering::Relaxed);
                                 let Some(&(a, b)) = pieces.get(i) else { break };
+                                if stopped_before(i) {
+                                    break;
+                                }
                                 if !work(&mut st, i, &src.data[a..b], a as u64) {
-                                    stop.store(true, Ordering::Relaxed);
+                                    stop(i);
                                 }
                                 progress.advance((b - a) as u64);
                             }
@@ -85,7 +94,7 @@ pub fn run<W: Send>(
                 let decoder = s.spawn(|| {
                     let tx = tx;
                     source::decode_chunks(src.data, c, src.piece, src.max_line, &mut |chunk| {
-                        !stop.load(Ordering::Relaxed) && tx.send(chunk).is_ok()
+                        !stopped_before(chunk.index) && tx.send(chunk).is_ok()
                     })
                 });
                 let handles: Vec<_> = (0..threads)
@@ -96,11 +105,11 @@ pub fn run<W: Send>(
                                 // Hold the lock only to receive, never while working.
                                 let got = rx.lock().map(|r| r.recv());
                                 let Ok(Ok(chunk)) = got else { break };
-                                if stop.load(Ordering::Relaxed) {
+                                if stopped_before(chunk.index) {
                                     continue;
                                 }
                                 if !work(&mut st, chunk.index, &chunk.bytes, chunk.byte_base) {
-                                    stop.store(true, Ordering::Relaxed);
+                                    stop(chunk.index);
                                 }
                                 progress.advance(chunk.bytes.len() as u64);
                             }

@@ -1,0 +1,102 @@
+//! The `plumb` binary end to end, as a user runs it: output, stdin, store files, exit codes.
+
+use std::io::Write;
+use std::process::{Command, Output, Stdio};
+
+fn plumb(args: &[&str]) -> Output {
+    Command::new(env!("CARGO_BIN_EXE_plumb"))
+        .args(args)
+        .current_dir(env!("CARGO_MANIFEST_DIR"))
+        .output()
+        .unwrap()
+}
+
+fn plumb_stdin(args: &[&str], input: &[u8]) -> Output {
+    let mut child = Command::new(env!("CARGO_BIN_EXE_plumb"))
+        .args(args)
+        .stdin(Stdio::piped())
+        .stdout(Stdio::piped())
+        .stderr(Stdio::piped())
+        .spawn()
+        .unwrap();
+    child.stdin.take().unwrap().write_all(input).unwrap();
+    child.wait_with_output().unwrap()
+}
+
+const DEMO: &str = "demo-data/larkspur/replies-2026-W40.tsv.zst";
+
+#[test]
+fn intake_of_the_demo_data() {
+    let out = plumb(&["intake", DEMO]);
+    assert!(
+        out.status.success(),
+        "{}",
+        String::from_utf8_lossy(&out.stderr)
+    );
+    let text = String::from_utf8(out.stdout).unwrap();
+    assert!(text.contains("zstd"), "{text}");
+    assert!(text.contains("240,000 edge lines"), "{text}");
+    assert!(
+        text.contains("header \"replier\\treplied_to\\tposted_at\""),
+        "{text}"
+    );
+    // Not a terminal: no progress output at all.
+    assert!(out.stderr.is_empty());
+}
+
+#[test]
+fn json_report_and_stdin() {
+    let out = plumb_stdin(&["intake", "--json", "-"], b"1 2\n2 3\n3 3\n");
+    assert!(out.status.success());
+    let v: serde_json::Value = serde_json::from_slice(&out.stdout).unwrap();
+    assert_eq!(v["intake"]["edges"], 2);
+    assert_eq!(v["intake"]["self_loops"], 1);
+    assert_eq!(v["intake"]["source"], "<stdin>");
+    assert_eq!(v["degree"]["max"], 2);
+    // Compressed standard input is sniffed like a file.
+    let z = zstd::encode_all(&b"1 2\n2 3\n"[..], 3).unwrap();
+    let out = plumb_stdin(&["intake", "--json", "-"], &z);
+    let v: serde_json::Value = serde_json::from_slice(&out.stdout).unwrap();
+    assert_eq!(v["intake"]["compression"], "zstd");
+}
+
+#[test]
+fn pack_verify_and_reuse_a_store() {
+    let dir = tempfile::tempdir().unwrap();
+    let store = dir.path().join("w40.plumb");
+    let s = store.to_str().unwrap();
+    let out = plumb(&["pack", DEMO, "-o", s]);
+    assert!(
+        out.status.success(),
+        "{}",
+        String::from_utf8_lossy(&out.stderr)
+    );
+    let out = plumb(&["verify", s]);
+    assert!(out.status.success());
+    assert!(String::from_utf8_lossy(&out.stdout).contains("ok"));
+    let from_store = plumb(&["intake", "--json", s]);
+    let from_text = plumb(&["intake", "--json", DEMO]);
+    let a: serde_json::Value = serde_json::from_slice(&from_store.stdout).unwrap();
+    let b: serde_json::Value = serde_json::from_slice(&from_text.stdout).unwrap();
+    assert_eq!(a["intake"]["edges"], b["intake"]["edges"]);
+    assert_eq!(
+        a["intake"]["reciprocal_pairs"],
+        b["intake"]["reciprocal_pairs"]
+    );
+    assert_eq!(a["degree"], b["degree"]);
+}
+
+#[test]
+fn exit_codes() {
+    let bad = plumb_stdin(&["intake", "-"], b"1 2\nthree\n");
+    assert_eq!(bad.status.code(), Some(3));
+    let err = String::from_utf8_lossy(&bad.stderr);
+    assert!(err.contains("<stdin>: line 2, byte offset 4"), "{err}");
+    let missing = plumb(&["intake", "/nonexistent/edges.tsv"]);
+    assert_eq!(missing.status.code(), Some(4));
+    let usage = plumb(&["intake", "--no-such-flag", DEMO]);
+    assert_eq!(usage.status.code(), Some(2));
+    let skipped = plumb_stdin(&["intake", "--skip-malformed", "-"], b"1 2\nthree\n");
+    assert_eq!(skipped.status.code(), Some(0));
+    assert!(String::from_utf8_lossy(&skipped.stdout).contains("skipped line 2"));
+}

@@ -1,0 +1,74 @@
+//! Helpers shared by the integration tests.
+#![allow(dead_code)]
+
+use std::collections::{BTreeMap, BTreeSet};
+
+use plumb::Graph;
+use plumb::ingest::{self, LoadOptions};
+use plumb::input::source::InputBytes;
+use plumb::progress::Quiet;
+
+pub fn load_bytes(name: &str, bytes: &[u8], opts: &LoadOptions) -> plumb::Result<Graph> {
+    ingest::load_input(InputBytes::from_vec(name, bytes.to_vec()), opts, &Quiet)
+}
+
+pub fn load_text(text: &str) -> Graph {
+    load_bytes("test.txt", text.as_bytes(), &LoadOptions::default()).expect("loads")
+}
+
+pub fn data(name: &str) -> std::path::PathBuf {
+    std::path::Path::new(env!("CARGO_MANIFEST_DIR"))
+        .join("tests/data")
+        .join(name)
+}
+
+/// The graph's edges as pairs of original ids, each pair ordered.
+pub fn edge_labels(g: &Graph) -> BTreeSet<(String, String)> {
+    let mut out = BTreeSet::new();
+    for u in 0..g.node_count() as u32 {
+        for &v in g.csr.neighbors(u) {
+            let (a, b) = (g.ids.label(u).into_owned(), g.ids.label(v).into_owned());
+            out.insert(if a <= b { (a, b) } else { (b, a) });
+        }
+    }
+    out
+}
+
+/// Degree of every node by original id.
+pub fn degrees(g: &Graph) -> BTreeMap<String, u32> {
+    (0..g.node_count() as u32)
+        .map(|u| (g.ids.label(u).into_owned(), g.csr.degree(u)))
+        .collect()
+}
+
+/// Parse a "<id> <degree>" reference file (comments start with #).
+pub fn reference_degrees(name: &str, sep: char) -> BTreeMap<String, u32> {
+    std::fs::read_to_string(data(name))
+        .unwrap()
+        .lines()
+        .filter(|l| !l.starts_with('#') && !l.is_empty())
+        .map(|l| {
+            let (a, b) = l.rsplit_once(sep).unwrap();
+            (a.to_string(), b.trim().parse().unwrap())
+        })
+        .collect()
+}
+
+pub fn zstd(bytes: &[u8]) -> Vec<u8> {
+    zstd::encode_all(bytes, 3).unwrap()
+}
+
+pub fn gzip(bytes: &[u8]) -> Vec<u8> {
+    use std::io::Write;
+    let mut e = flate2::write::GzEncoder::new(Vec::new(), flate2::Compression::default());
+    e.write_all(bytes).unwrap();
+    e.finish().unwrap()
+}
+
+/// Several independent zstd frames, cut at arbitrary byte positions (as parallel compressors do).
+pub fn zstd_frames(bytes: &[u8], frame: usize) -> Vec<u8> {
+    bytes
+        .chunks(frame)
+        .flat_map(|c| zstd::encode_all(c, 1).unwrap())
+        .collect()
+}
