@@ -37,8 +37,11 @@ fn atomic_zeroed(len: usize) -> Vec<AtomicU32> {
 }
 
 fn plain(v: Vec<AtomicU32>) -> Vec<u32> {
-    // Collected in place (same layout), no second allocation.
-    v.into_iter().map(AtomicU32::into_inner).collect()
+    let v = std::mem::ManuallyDrop::new(v);
+    let (ptr, len, cap) = (v.as_ptr() as *mut u32, v.len(), v.capacity());
+    // SAFETY: as in `atomic_zeroed`, the layouts are identical; owning the Vec means no other
+    // thread can still be writing through the atomics.
+    unsafe { Vec::from_raw_parts(ptr, len, cap) }
 }
 
 impl Filler {
@@ -67,6 +70,21 @@ impl Filler {
         self.targets[p as usize].store(v as u32, Relaxed);
         let q = self.offsets[v + 1] - 1 - self.back[v].fetch_add(1, Relaxed) as u64;
         self.targets[q as usize].store(u as u32, Relaxed);
+    }
+
+    /// Record a batch of edge lines, fetching the counters a few edges ahead so that their cache
+    /// misses overlap (each locked increment otherwise waits for the previous one's misses).
+    pub fn edges(&self, batch: &[(u32, u32)]) {
+        const AHEAD: usize = 12;
+        for (i, &(u, v)) in batch.iter().enumerate() {
+            if let Some(&(pu, pv)) = batch.get(i + AHEAD) {
+                prefetch(&self.front[pu as usize]);
+                prefetch(&self.back[pv as usize]);
+                prefetch(&self.offsets[pu as usize]);
+                prefetch(&self.offsets[pv as usize + 1]);
+            }
+            self.edge(u, v);
+        }
     }
 
     /// Sort and merge every list, then close the gaps left by merged duplicates.
@@ -159,6 +177,19 @@ impl Filler {
             directed_pairs,
         })
     }
+}
+
+#[inline(always)]
+fn prefetch<T>(r: &T) {
+    #[cfg(target_arch = "x86_64")]
+    // SAFETY: prefetching is a hint; the pointer comes from a live reference.
+    unsafe {
+        std::arch::x86_64::_mm_prefetch::<{ std::arch::x86_64::_MM_HINT_T0 }>(
+            r as *const T as *const i8,
+        );
+    }
+    #[cfg(not(target_arch = "x86_64"))]
+    let _ = r;
 }
 
 /// Merge two sorted lists into `out` without repeats; returns how many distinct values `a` had.

@@ -98,6 +98,9 @@ pub fn load_input(input: InputBytes, opts: &LoadOptions, progress: &dyn Progress
     Loader::new(&input, compression, opts, progress)?.run()
 }
 
+/// Edges parsed before they are written out together.
+const FILL_BATCH: usize = 2048;
+
 /// How much text is looked at up front (banner, header guess).
 const PEEK: usize = 1 << 20;
 
@@ -284,13 +287,22 @@ impl<'a> Loader<'a> {
         let filler = Filler::new(&index.raw_degree);
         self.begin("filling");
         if keep {
-            kept.par_iter().for_each(|(_, raw)| match raw {
-                Raw::Narrow(v) => v
-                    .chunks_exact(2)
-                    .for_each(|p| filler.edge(index.get(p[0] as u64), index.get(p[1] as u64))),
-                Raw::Wide(v) => v
-                    .chunks_exact(2)
-                    .for_each(|p| filler.edge(index.get(p[0]), index.get(p[1]))),
+            kept.par_iter().for_each(|(_, raw)| {
+                let mut dense = Vec::with_capacity(FILL_BATCH);
+                let mut put = |a: u64, b: u64| {
+                    dense.push((index.get(a), index.get(b)));
+                    if dense.len() == FILL_BATCH {
+                        filler.edges(&dense);
+                        dense.clear();
+                    }
+                };
+                match raw {
+                    Raw::Narrow(v) => v
+                        .chunks_exact(2)
+                        .for_each(|p| put(p[0] as u64, p[1] as u64)),
+                    Raw::Wide(v) => v.chunks_exact(2).for_each(|p| put(p[0], p[1])),
+                }
+                filler.edges(&dense);
             });
             drop(kept);
         } else {
@@ -301,14 +313,28 @@ impl<'a> Loader<'a> {
                 self.progress,
                 || (),
                 |_, i, bytes, base| {
+                    // Parse a batch, then map and store it in a tight loop: the random writes
+                    // overlap far better than when interleaved with parsing.
+                    let mut batch: Vec<(u64, u64)> = Vec::with_capacity(FILL_BATCH);
+                    let mut dense: Vec<(u32, u32)> = Vec::with_capacity(FILL_BATCH);
+                    let mut flush = |batch: &mut Vec<(u64, u64)>| {
+                        dense.clear();
+                        dense.extend(batch.iter().map(|&(a, b)| (index.get(a), index.get(b))));
+                        filler.edges(&dense);
+                        batch.clear();
+                    };
                     scan::scan_chunk(i, bytes, base, rules, |a, b| {
                         if let (Some(a), Some(b)) = (a.int, b.int)
                             && a != b
                         {
-                            filler.edge(index.get(a), index.get(b));
+                            batch.push((a, b));
+                            if batch.len() == FILL_BATCH {
+                                flush(&mut batch);
+                            }
                         }
                         true
                     });
+                    flush(&mut batch);
                     true
                 },
             )

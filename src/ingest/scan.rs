@@ -118,6 +118,22 @@ pub fn scan_chunk<'a>(
     }
     let mut line_no = 0u64;
     while pos < len {
+        // The common shape ("123 456\n") skips the general parser and the newline search.
+        if let Some((a, b, next)) = edgeline::quick_pair(bytes, pos)
+            && next - pos <= rules.max_line
+            && rules.header_at != Some(byte_base + pos as u64)
+            && rules.mtx.is_none_or(|m| mtx_entry(a, b, false, m).is_ok())
+        {
+            line_no += 1;
+            pos = next;
+            c.edge_lines += 1;
+            c.loops += a.same(&b, rules.text_ids) as u64;
+            if on_edge(a, b) {
+                continue;
+            }
+            out.stopped = true;
+            break;
+        }
         let end = memchr::memchr(b'\n', &bytes[pos..]).map_or(len, |i| pos + i);
         let line = &bytes[pos..end];
         let start = pos;

@@ -156,6 +156,53 @@ pub fn parse_line(line: &[u8]) -> Result<Line<'_>, Fault> {
     Ok(Line::Edge { a, b, extra })
 }
 
+/// Fast path for the commonest line shape: `digits SEP digits` ending in `\n`, `\r\n` or the end
+/// of `bytes`, with SEP a single space, tab or comma and each id at most 19 digits (so no
+/// overflow check is needed). Returns both ids and the index just past the line. `None` means
+/// "use [`parse_line`]", which gives the same answer for every line this accepts.
+#[inline(always)]
+pub fn quick_pair(bytes: &[u8], pos: usize) -> Option<(Token<'_>, Token<'_>, usize)> {
+    let (a, i) = digits(bytes, pos)?;
+    match bytes.get(i) {
+        Some(b' ' | b'\t' | b',') => {}
+        _ => return None,
+    }
+    let (b, j) = digits(bytes, i + 1)?;
+    let next = match bytes.get(j) {
+        None => j,
+        Some(b'\n') => j + 1,
+        Some(b'\r') if bytes.get(j + 1) == Some(&b'\n') => j + 2,
+        _ => return None,
+    };
+    let ta = Token {
+        raw: &bytes[pos..i],
+        int: Some(a),
+    };
+    let tb = Token {
+        raw: &bytes[i + 1..j],
+        int: Some(b),
+    };
+    Some((ta, tb, next))
+}
+
+#[inline(always)]
+fn digits(bytes: &[u8], pos: usize) -> Option<(u64, usize)> {
+    let mut v = 0u64;
+    let mut i = pos;
+    while let Some(&c) = bytes.get(i) {
+        let d = c.wrapping_sub(b'0');
+        if d >= 10 {
+            break;
+        }
+        v = v * 10 + d as u64;
+        i += 1;
+        if i - pos > 19 {
+            return None;
+        }
+    }
+    (i > pos).then_some((v, i))
+}
+
 /// Decide whether the first data line of a file is a column header rather than an edge.
 ///
 /// A header is a line with at least one non-integer id where either the next data line has two
@@ -247,6 +294,38 @@ mod tests {
         assert_eq!(parse_line(b"1,,2"), Err(Fault::EmptyField));
         assert_eq!(parse_line(b",2"), Err(Fault::EmptyField));
         assert_eq!(parse_line(b"1\x002 3"), Err(Fault::ControlByte));
+    }
+
+    #[test]
+    fn quick_path_agrees_with_the_general_parser() {
+        let cases: &[&[u8]] = &[
+            b"1 2\n",
+            b"1\t2\r\n",
+            b"1,2",
+            b"12345678901234567890 1\n",
+            b"1 2 3\n",
+            b"1  2\n",
+            b"1 2\r",
+            b"a 2\n",
+            b"1 b\n",
+            b"\n",
+            b"1\n",
+            b"0 0\n",
+            b"1 ,2\n",
+        ];
+        for &c in cases {
+            if let Some((a, b, next)) = quick_pair(c, 0) {
+                let end = c.iter().position(|&x| x == b'\n').unwrap_or(c.len());
+                assert_eq!(next, (end + 1).min(c.len()), "{c:?}");
+                assert_eq!(
+                    parse_line(&c[..end]),
+                    Ok(Line::Edge { a, b, extra: false }),
+                    "{c:?}"
+                );
+            }
+        }
+        assert!(quick_pair(b"12345678901234567890 1\n", 0).is_none());
+        assert!(quick_pair(b"1 2\n", 0).is_some());
     }
 
     #[test]
