@@ -77,6 +77,34 @@ pub struct Intake {
 }
 
 impl Intake {
+    /// The report for a graph that was generated in memory rather than read from text.
+    pub fn generated(source: &str, nodes: u64, edges: u64, isolated_nodes: u64) -> Self {
+        Intake {
+            source: source.to_string(),
+            format: InputFormat::EdgeList,
+            compression: Compression::None,
+            frames: None,
+            input_bytes: 0,
+            text_bytes: 0,
+            lines: 0,
+            blank_lines: 0,
+            comment_lines: 0,
+            header_line: None,
+            edge_lines: edges,
+            extra_column_lines: 0,
+            self_loops: 0,
+            repeated_lines: 0,
+            reciprocal_pairs: 0,
+            malformed_skipped: 0,
+            malformed_examples: Vec::new(),
+            nodes,
+            edges,
+            isolated_nodes,
+            id_kind: IdKind::Integer,
+            stages: Vec::new(),
+        }
+    }
+
     pub fn total_seconds(&self) -> f64 {
         self.stages.iter().map(|s| s.seconds).sum()
     }
