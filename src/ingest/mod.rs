@@ -285,8 +285,8 @@ impl<'a> Loader<'a> {
         self.stage_done("index ids");
 
         let filler = Filler::new(&index.raw_degree);
-        self.begin("filling");
         if keep {
+            self.progress.stage("filling", None, Unit::Items);
             kept.par_iter().for_each(|(_, raw)| {
                 let mut dense = Vec::with_capacity(FILL_BATCH);
                 let mut put = |a: u64, b: u64| {
@@ -306,6 +306,7 @@ impl<'a> Loader<'a> {
             });
             drop(kept);
         } else {
+            self.begin("filling");
             let rules = &self.rules;
             pieces::run(
                 self.src,
