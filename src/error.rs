@@ -30,6 +30,8 @@ pub enum ErrorClass {
     BadInput,
     /// Reading or writing failed at the operating-system level.
     Io,
+    /// The work would exceed a resource budget.
+    Budget,
 }
 
 #[derive(Debug, thiserror::Error)]
@@ -76,7 +78,7 @@ pub enum Error {
         problem: String,
     },
 
-    #[error("{path}: more than {limit} distinct nodes; plumb indexes nodes with 32-bit integers")]
+    #[error("{path}: more than {limit} distinct nodes (plumb indexes nodes with 32-bit integers)")]
     TooManyNodes { path: PathBuf, limit: u64 },
 
     #[error("{path}: node {node} has more than {limit} edge lines; per-node degrees are 32-bit")]
@@ -84,6 +86,17 @@ pub enum Error {
         path: PathBuf,
         node: String,
         limit: u64,
+    },
+
+    #[error(
+        "{path}: {what} needs about {needed_mib} MiB, over the memory budget of {budget_mib} MiB \
+         (raise it with --memory-budget if the machine has the memory)"
+    )]
+    OverBudget {
+        path: PathBuf,
+        what: String,
+        needed_mib: u64,
+        budget_mib: u64,
     },
 
     #[error("{path}: not a usable store file: {problem}")]
@@ -97,6 +110,7 @@ impl Error {
     pub fn class(&self) -> ErrorClass {
         match self {
             Error::Io { .. } => ErrorClass::Io,
+            Error::OverBudget { .. } => ErrorClass::Budget,
             _ => ErrorClass::BadInput,
         }
     }

@@ -66,6 +66,16 @@ impl NodeIds {
         }
     }
 
+    /// The original id of dense index `i` as bytes (text ids may not be UTF-8).
+    pub fn label_bytes(&self, i: u32) -> Cow<'_, [u8]> {
+        match self {
+            NodeIds::Text { offsets, bytes } => Cow::Borrowed(
+                &bytes[offsets[i as usize] as usize..offsets[i as usize + 1] as usize],
+            ),
+            _ => Cow::Owned(self.label(i).into_owned().into_bytes()),
+        }
+    }
+
     /// Bytes the table occupies.
     pub fn bytes(&self) -> u64 {
         match self {

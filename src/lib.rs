@@ -11,6 +11,7 @@ pub mod graph;
 pub mod ingest;
 pub mod input;
 pub mod intake;
+pub mod limits;
 pub mod outfile;
 pub mod progress;
 pub mod slab;

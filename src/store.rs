@@ -254,20 +254,18 @@ pub fn open(path: &Path) -> Result<Graph> {
 /// into an anonymous map first).
 pub fn open_input(input: InputBytes) -> Result<Graph> {
     let path = input.path.clone();
+    let len = input.bytes().len();
+    // An anonymous map (for piped bytes) may be longer than `len`; only `len` bytes count.
+    let map = input.into_map().map_err(|e| Error::io(&path, "map", e))?;
+    open_checked(&path, Arc::new(map), len)
+}
+
+fn open_checked(path: &Path, map: Arc<memmap2::Mmap>, len: usize) -> Result<Graph> {
     let bad = |problem: String| Error::Store {
-        path: path.clone(),
+        path: path.to_path_buf(),
         problem,
     };
-    let map = match input.into_mmap() {
-        Some(m) => m,
-        None => {
-            return Err(bad(
-                "store files must be opened from a path, not standard input".into(),
-            ));
-        }
-    };
-    let map = Arc::new(map);
-    let data: &[u8] = &map;
+    let data: &[u8] = &map[..len];
     if data.len() < HEADER || &data[..8] != MAGIC {
         return Err(bad(format!(
             "too short or wrong magic ({} bytes; a store starts with a {HEADER}-byte header)",
@@ -370,4 +368,44 @@ fn check_offsets(o: &[u64], end: u64) -> Result<(), String> {
         return Err("offsets decrease".into());
     }
     Ok(())
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    /// A store whose header was edited, then resealed with a valid checksum: the structural
+    /// checks must still refuse it.
+    fn tampered(edit: impl Fn(&mut Header)) -> String {
+        let text = b"1 2\n2 3\n3 1\n".to_vec();
+        let g = crate::ingest::load_input(
+            InputBytes::from_vec("t", text),
+            &crate::ingest::LoadOptions::default(),
+            &crate::progress::Quiet,
+        )
+        .unwrap();
+        let dir = tempfile::tempdir().unwrap();
+        let p = dir.path().join("s.plumb");
+        write(&g, &p).unwrap();
+        let mut bytes = std::fs::read(&p).unwrap();
+        let mut h = Header::decode(&bytes);
+        edit(&mut h);
+        bytes[..HEADER].copy_from_slice(&h.encode());
+        h.checksum = checksum(&bytes[..HEADER], &bytes[HEADER..]);
+        bytes[..HEADER].copy_from_slice(&h.encode());
+        open_input(InputBytes::from_vec("t", bytes))
+            .unwrap_err()
+            .to_string()
+    }
+
+    #[test]
+    fn header_claims_beyond_the_file_are_refused() {
+        assert!(tampered(|h| h.n = 1 << 31).contains("outside the file"));
+        assert!(tampered(|h| h.entries = u64::MAX / 2).contains("outside the file"));
+        assert!(tampered(|h| h.intake_len = 1 << 40).contains("outside the file"));
+        assert!(tampered(|h| h.n = u64::MAX).contains("claims"));
+        assert!(tampered(|h| h.id_kind = 7).contains("unknown id kind"));
+        assert!(tampered(|h| h.offsets_at = 131).contains("misaligned"));
+        assert!(tampered(|h| h.n = 2).contains("offsets do not span"));
+    }
 }

@@ -220,3 +220,73 @@ fn store_files_truncated_corrupt_or_newer() {
     // The input is never modified by any of this.
     assert_eq!(std::fs::read(&path).unwrap(), good);
 }
+
+#[test]
+fn more_distinct_nodes_than_allowed() {
+    // The real limit is 2^32 - 1 nodes; the same check with a small limit.
+    let opts = LoadOptions {
+        max_nodes: 3,
+        ..LoadOptions::default()
+    };
+    for text in [
+        &b"1 2\n3 4\n"[..],
+        b"a b\nc d\n",
+        b"1 2\n1 3\n1 99999999999\n",
+    ] {
+        let e = load_bytes("many", text, &opts).unwrap_err();
+        assert!(matches!(e, Error::TooManyNodes { limit: 3, .. }), "{e:?}");
+    }
+    let e = load_bytes(
+        "many.mtx",
+        b"%%MatrixMarket matrix coordinate pattern general\n4 4 1\n1 2\n",
+        &opts,
+    )
+    .unwrap_err();
+    assert!(matches!(e, Error::TooManyNodes { .. }), "{e:?}");
+    assert!(load_bytes("ok", b"1 2\n2 3\n", &opts).is_ok());
+}
+
+#[test]
+fn matrix_market_size_line_cannot_force_a_huge_allocation() {
+    // 3e9 declared nodes would need tens of GiB before a single entry is read.
+    let e =
+        err(b"%%MatrixMarket matrix coordinate pattern general\n3000000000 3000000000 1\n1 2\n");
+    assert!(matches!(e, Error::OverBudget { .. }), "{e:?}");
+    assert!(
+        e.to_string()
+            .contains("3000000000 nodes its size line declares"),
+        "{e}"
+    );
+    let e =
+        err(b"%%MatrixMarket matrix coordinate pattern general\n9000000000 9000000000 1\n1 2\n");
+    assert!(matches!(e, Error::TooManyNodes { .. }), "{e:?}");
+}
+
+#[test]
+fn decompression_bomb_stops_at_the_budget() {
+    // 64 MiB of text that compresses to a few KiB.
+    let text = b"1 2\n".repeat(16 << 20);
+    let z = zstd(&text);
+    assert!(z.len() < 64 << 10);
+    let opts = LoadOptions {
+        memory_budget: 8 << 20,
+        ..LoadOptions::default()
+    };
+    let e = load_bytes("bomb.zst", &z, &opts).unwrap_err();
+    assert!(matches!(e, Error::OverBudget { .. }), "{e:?}");
+    assert!(
+        e.to_string().contains("over the memory budget of 8 MiB"),
+        "{e}"
+    );
+}
+
+#[test]
+fn adjacency_larger_than_the_budget() {
+    let text: String = (0..100_000).map(|i| format!("{i} {}\n", i + 1)).collect();
+    let opts = LoadOptions {
+        memory_budget: 1 << 20,
+        ..LoadOptions::default()
+    };
+    let e = load_bytes("big", text.as_bytes(), &opts).unwrap_err();
+    assert!(e.to_string().contains("building the adjacency"), "{e}");
+}

@@ -138,3 +138,52 @@ proptest! {
         prop_assert_eq!(got, expect);
     }
 }
+
+/// Bytes drawn from the characters that matter to the grammar.
+fn soup(max: usize) -> impl Strategy<Value = Vec<u8>> {
+    prop::collection::vec(
+        prop::sample::select(&b"0123456789  \t,\n\n\r#%ab-x\x00"[..]),
+        0..max,
+    )
+}
+
+proptest! {
+    #![proptest_config(ProptestConfig::with_cases(2000))]
+
+    /// On any bytes the fast reader and the naive reference agree: the same graph, or an error
+    /// on the same line (at the same byte offset).
+    #[test]
+    fn fast_reader_agrees_with_reference_on_byte_soup(bytes in soup(160), piece in 1usize..64) {
+        use plumb::ingest::reference;
+        let opts = LoadOptions { piece_bytes: piece, ..LoadOptions::default() };
+        let fast = load_bytes("soup", &bytes, &opts);
+        match (fast, reference::edge_list(&bytes)) {
+            (Ok(g), Ok(r)) => prop_assert_eq!(reference::view(&g), r),
+            (Err(plumb::Error::Malformed { pos, .. }), Err(r)) => {
+                prop_assert_eq!((pos.line, pos.byte), (r.line, r.byte));
+            }
+            (Err(plumb::Error::Empty { .. }), Ok(r)) => prop_assert!(r.nodes.is_empty()),
+            (f, r) => prop_assert!(false, "fast {:?} vs reference {:?}", f.map(|g| g.intake), r),
+        }
+    }
+
+    #[test]
+    fn matrix_market_agrees_with_reference(body in soup(80), n in 0u8..6, e in 0u8..6, field in 0usize..3) {
+        use plumb::ingest::reference;
+        let fields = ["pattern", "integer", "real"];
+        let mut bytes = format!(
+            "%%MatrixMarket matrix coordinate {} general\n% c\n{n} {n} {e}\n",
+            fields[field]
+        )
+        .into_bytes();
+        bytes.extend_from_slice(&body);
+        let fast = load_bytes("m", &bytes, &LoadOptions::default());
+        match (fast, reference::matrix_market(&bytes)) {
+            (Ok(g), Some(r)) => prop_assert_eq!(reference::view(&g), r),
+            (Err(_), None) => {}
+            // Zero declared nodes is an empty graph to the reference, an error to plumb.
+            (Err(plumb::Error::Empty { .. }), Some(r)) => prop_assert!(r.nodes.is_empty()),
+            (f, r) => prop_assert!(false, "fast {:?} vs reference {:?}", f.map(|g| g.intake), r),
+        }
+    }
+}

@@ -13,13 +13,15 @@ use plumb::ingest::{self, FormatChoice, HeaderChoice, LoadOptions};
 /// Exit codes (documented in the README).
 pub const EXIT_BAD_INPUT: u8 = 3;
 pub const EXIT_IO: u8 = 4;
+pub const EXIT_BUDGET: u8 = 5;
 
 #[derive(Parser, Debug)]
 #[command(
     name = "plumb",
     version,
     about = "Structure profiles of very large undirected networks, straight from edge-list dumps",
-    after_help = "Exit codes: 0 success, 2 bad arguments, 3 bad input, 4 I/O failure."
+    after_help = "Exit codes: 0 success, 2 bad arguments, 3 bad input, 4 I/O failure, \
+                  5 over the memory budget."
 )]
 pub struct Args {
     /// Worker threads (default: all cores).
@@ -87,6 +89,9 @@ struct InputArgs {
     /// Longest line accepted, in bytes.
     #[arg(long, default_value_t = 1 << 20, value_name = "BYTES")]
     max_line: usize,
+    /// Memory the build may use, e.g. 8G (default: 90% of the memory available now).
+    #[arg(long, value_name = "SIZE", value_parser = plumb::limits::parse_size)]
+    memory_budget: Option<u64>,
 }
 
 #[derive(ValueEnum, Clone, Copy, Debug)]
@@ -124,7 +129,10 @@ impl InputArgs {
             },
             skip_malformed: self.skip_malformed,
             max_line: self.max_line,
-            piece_bytes: 0,
+            memory_budget: self
+                .memory_budget
+                .unwrap_or_else(plumb::limits::default_memory_budget),
+            ..LoadOptions::default()
         }
     }
 }
@@ -133,6 +141,7 @@ pub fn exit_code(e: &Error) -> ExitCode {
     match e.class() {
         ErrorClass::BadInput => ExitCode::from(EXIT_BAD_INPUT),
         ErrorClass::Io => ExitCode::from(EXIT_IO),
+        ErrorClass::Budget => ExitCode::from(EXIT_BUDGET),
     }
 }
 

@@ -107,7 +107,11 @@ pub enum IndexFault {
 impl IntIndex {
     /// Merge per-worker tallies. `universe` makes ids `1..=n` nodes even without edges (Matrix
     /// Market declares its node count).
-    pub fn build(mut tallies: Vec<IntTally>, universe: Option<u64>) -> Result<Self, IndexFault> {
+    pub fn build(
+        mut tallies: Vec<IntTally>,
+        universe: Option<u64>,
+        max_nodes: u64,
+    ) -> Result<Self, IndexFault> {
         tallies.iter_mut().for_each(IntTally::flush);
         tallies.sort_by_key(|t| std::cmp::Reverse(t.deg.len()));
         let mut iter = tallies.into_iter();
@@ -181,7 +185,7 @@ impl IntIndex {
             let looped = li < loops.len() && loops[li] == id as u64;
             let d = *slot;
             if d > 0 || looped || in_universe(id) {
-                if ids.len() as u64 >= MAX_NODES {
+                if ids.len() as u64 >= max_nodes {
                     return Err(IndexFault::TooManyNodes);
                 }
                 *slot = ids.len() as u32;
@@ -194,7 +198,7 @@ impl IntIndex {
         let rank = deg;
         let mut sparse_ids: Vec<(u64, u32)> = base.sparse.into_iter().collect();
         sparse_ids.par_sort_unstable_by_key(|&(id, _)| id);
-        if ids.len() as u64 + sparse_ids.len() as u64 > MAX_NODES {
+        if ids.len() as u64 + sparse_ids.len() as u64 > max_nodes {
             return Err(IndexFault::TooManyNodes);
         }
         let mut sparse = FxHashMap::with_capacity_and_hasher(sparse_ids.len(), Default::default());
@@ -269,7 +273,7 @@ pub struct TextIndex {
 }
 
 impl TextIndex {
-    pub fn build(tallies: Vec<TextTally>) -> Result<Self, IndexFault> {
+    pub fn build(tallies: Vec<TextTally>, max_nodes: u64) -> Result<Self, IndexFault> {
         let mut iter = tallies.into_iter();
         let mut base = iter.next().unwrap_or_default();
         for t in iter {
@@ -278,7 +282,7 @@ impl TextIndex {
                 *d = d.saturating_add(x);
             }
         }
-        if base.deg.len() as u64 > MAX_NODES {
+        if base.deg.len() as u64 > max_nodes {
             return Err(IndexFault::TooManyNodes);
         }
         if let Some((k, _)) = base.deg.iter().find(|(_, d)| **d == u32::MAX) {
@@ -326,7 +330,7 @@ mod tests {
         b.edge(42, 42); // self-loop: node without edges
         a.edge(7, 7);
         a.edge(u64::MAX, 3);
-        let idx = IntIndex::build(vec![a, b], None).unwrap();
+        let idx = IntIndex::build(vec![a, b], None, MAX_NODES).unwrap();
         assert_eq!(idx.ids, vec![3, 5, 7, 42, 1_000_000, u64::MAX]);
         assert_eq!(idx.raw_degree, vec![2, 2, 0, 0, 1, 1]);
         for (i, &id) in idx.ids.iter().enumerate() {
@@ -338,7 +342,7 @@ mod tests {
     fn universe_keeps_isolated_nodes() {
         let mut a = IntTally::new(1 << 20);
         a.edge(2, 3);
-        let idx = IntIndex::build(vec![a], Some(4)).unwrap();
+        let idx = IntIndex::build(vec![a], Some(4), MAX_NODES).unwrap();
         assert_eq!(idx.ids, vec![1, 2, 3, 4]);
     }
 
@@ -347,7 +351,7 @@ mod tests {
         let mut t = TextTally::default();
         t.edge(b"mo", b"al");
         t.edge(b"zed", b"zed");
-        let idx = TextIndex::build(vec![t]).unwrap();
+        let idx = TextIndex::build(vec![t], MAX_NODES).unwrap();
         assert_eq!(idx.bytes, b"almozed");
         assert_eq!(idx.offsets, vec![0, 2, 4, 7]);
         assert_eq!(idx.get(b"zed"), 2);

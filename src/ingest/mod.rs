@@ -7,12 +7,14 @@
 
 pub mod ids;
 pub mod pieces;
+pub mod reference;
 pub mod scan;
 
 mod fill;
 
 use std::borrow::Cow;
 use std::path::Path;
+use std::sync::atomic::{AtomicBool, AtomicU64, Ordering};
 use std::time::Instant;
 
 use rayon::prelude::*;
@@ -61,6 +63,10 @@ pub struct LoadOptions {
     pub max_line: usize,
     /// Size of the pieces handed to workers; 0 chooses from the input size.
     pub piece_bytes: usize,
+    /// Most distinct nodes accepted (at most [`ids::MAX_NODES`]).
+    pub max_nodes: u64,
+    /// Bytes the build may allocate; a build that would need more stops with a clear error.
+    pub memory_budget: u64,
 }
 
 impl Default for LoadOptions {
@@ -71,6 +77,8 @@ impl Default for LoadOptions {
             skip_malformed: false,
             max_line: 1 << 20,
             piece_bytes: 0,
+            max_nodes: ids::MAX_NODES,
+            memory_budget: crate::limits::default_memory_budget(),
         }
     }
 }
@@ -96,6 +104,21 @@ pub fn load_input(input: InputBytes, opts: &LoadOptions, progress: &dyn Progress
         Sniffed::Compressed(c) => c,
     };
     Loader::new(&input, compression, opts, progress)?.run()
+}
+
+/// Memory per node while building: offsets (8), raw degree (4), two cursors (8), id (8).
+const BYTES_PER_NODE: u64 = 28;
+
+fn check_budget(path: &Path, opts: &LoadOptions, what: String, needed: u64) -> Result<()> {
+    if needed > opts.memory_budget {
+        return Err(Error::OverBudget {
+            path: path.to_path_buf(),
+            what,
+            needed_mib: needed.div_ceil(1 << 20),
+            budget_mib: opts.memory_budget >> 20,
+        });
+    }
+    Ok(())
 }
 
 /// Edges parsed before they are written out together.
@@ -182,12 +205,19 @@ impl<'a> Loader<'a> {
                 },
                 problem: f.problem,
             })?;
-            if h.rows > ids::MAX_NODES {
+            if h.rows > opts.max_nodes.min(ids::MAX_NODES) {
                 return Err(Error::TooManyNodes {
                     path: path.clone(),
-                    limit: ids::MAX_NODES,
+                    limit: opts.max_nodes.min(ids::MAX_NODES),
                 });
             }
+            // Declared nodes all exist, so the claim alone sizes the arrays: check it first.
+            check_budget(
+                path,
+                opts,
+                format!("the {} nodes its size line declares", h.rows),
+                (h.rows + 1).saturating_mul(BYTES_PER_NODE),
+            )?;
             rules.body_start = h.body_start as u64;
             rules.mtx = Some(MtxRules {
                 n: h.rows,
@@ -245,10 +275,19 @@ impl<'a> Loader<'a> {
     fn run(mut self) -> Result<Graph> {
         // Pass 1: integer ids (the fast path). Compressed input keeps its edges for pass 2.
         let keep = self.src.compression != Compression::None;
+        // Flat id arrays grow to the largest id seen, up to a cap tied to the input size and the
+        // memory budget; larger ids go to a hash map.
+        let per_worker = self.opts.memory_budget / 4 / (4 * self.threads as u64);
         let cap = match &self.mtx {
             Some(h) => h.rows + 1,
-            None => (self.src.data.len() as u64 * if keep { 16 } else { 4 }).max(1 << 24),
+            None => (self.src.data.len() as u64 * if keep { 16 } else { 4 })
+                .min(per_worker)
+                .max(1 << 24),
         };
+        // Compressed input keeps its edges; a decompression bomb must not exhaust memory.
+        let kept_bytes = AtomicU64::new(0);
+        let over_budget = AtomicBool::new(false);
+        let keep_limit = self.opts.memory_budget / 2;
         self.begin("scanning");
         let rules = self.rules.clone();
         let (states, info) = pieces::run(
@@ -260,7 +299,17 @@ impl<'a> Loader<'a> {
                 outcomes: Vec::new(),
                 kept: Vec::new(),
             },
-            |w, index, bytes, base| w.scan(index, bytes, base, &rules, keep),
+            |w, index, bytes, base| {
+                let go_on = w.scan(index, bytes, base, &rules, keep);
+                if keep {
+                    let added = w.kept.last().map_or(0, |(_, r)| r.bytes());
+                    if kept_bytes.fetch_add(added, Ordering::Relaxed) + added > keep_limit {
+                        over_budget.store(true, Ordering::Relaxed);
+                        return false;
+                    }
+                }
+                go_on
+            },
         )
         .map_err(|f| self.stream_fault(f, &[]))?;
         let mut outcomes = Vec::new();
@@ -280,10 +329,17 @@ impl<'a> Loader<'a> {
         }
 
         self.progress.stage("indexing ids", None, Unit::Items);
-        let index = IntIndex::build(tallies, self.mtx.as_ref().map(|h| h.rows))
+        if over_budget.load(Ordering::Relaxed) {
+            return Err(self.over_budget(
+                "keeping the decompressed edges between passes",
+                kept_bytes.load(Ordering::Relaxed),
+            ));
+        }
+        let index = IntIndex::build(tallies, self.mtx.as_ref().map(|h| h.rows), self.max_nodes())
             .map_err(|f| self.index_fault(f))?;
         self.stage_done("index ids");
 
+        self.check_fill_budget(&index.raw_degree)?;
         let filler = Filler::new(&index.raw_degree);
         if keep {
             self.progress.stage("filling", None, Unit::Items);
@@ -369,9 +425,10 @@ impl<'a> Loader<'a> {
         .map_err(|f| self.stream_fault(f, &[]))?;
         let (tallies, outcomes): (Vec<_>, Vec<_>) = states.into_iter().unzip();
         let scanned = self.check(outcomes.into_iter().flatten().collect(), info)?;
-        let index = TextIndex::build(tallies).map_err(|f| self.index_fault(f))?;
+        let index = TextIndex::build(tallies, self.max_nodes()).map_err(|f| self.index_fault(f))?;
         self.stage_done("index ids");
 
+        self.check_fill_budget(&index.raw_degree)?;
         let filler = Filler::new(&index.raw_degree);
         self.begin("filling");
         pieces::run(
@@ -590,11 +647,42 @@ impl<'a> Loader<'a> {
         }
     }
 
+    fn max_nodes(&self) -> u64 {
+        self.opts.max_nodes.min(ids::MAX_NODES)
+    }
+
+    fn over_budget(&self, what: &str, needed: u64) -> Error {
+        Error::OverBudget {
+            path: self.input.path.clone(),
+            what: what.to_string(),
+            needed_mib: needed.div_ceil(1 << 20),
+            budget_mib: self.opts.memory_budget >> 20,
+        }
+    }
+
+    /// The adjacency under construction: raw entries plus per-node offsets and cursors.
+    fn check_fill_budget(&self, raw_degree: &[u32]) -> Result<()> {
+        let entries: u64 = raw_degree.par_iter().map(|&d| d as u64).sum();
+        let needed = entries
+            .saturating_mul(4)
+            .saturating_add((raw_degree.len() as u64 + 1).saturating_mul(BYTES_PER_NODE));
+        check_budget(
+            &self.input.path,
+            self.opts,
+            format!(
+                "building the adjacency of {} nodes and {} edge entries",
+                raw_degree.len(),
+                entries
+            ),
+            needed,
+        )
+    }
+
     fn index_fault(&self, f: IndexFault) -> Error {
         match f {
             IndexFault::TooManyNodes => Error::TooManyNodes {
                 path: self.input.path.clone(),
-                limit: ids::MAX_NODES,
+                limit: self.max_nodes(),
             },
             IndexFault::DegreeOverflow(node) => Error::DegreeTooLarge {
                 path: self.input.path.clone(),
@@ -620,6 +708,13 @@ enum Raw {
 }
 
 impl Raw {
+    fn bytes(&self) -> u64 {
+        match self {
+            Raw::Narrow(v) => v.len() as u64 * 4,
+            Raw::Wide(v) => v.len() as u64 * 8,
+        }
+    }
+
     #[inline]
     fn push(&mut self, a: u64, b: u64) {
         match self {

@@ -225,9 +225,10 @@ pub fn looks_like_header(first: &[u8], next: Option<&[u8]>) -> bool {
 
 fn is_column_name(s: &[u8]) -> bool {
     const NAMES: &[&str] = &[
-        "source", "target", "src", "dst", "dest", "from", "to", "u", "v", "node", "node1", "node2",
-        "node_1", "node_2", "id1", "id2", "head", "tail", "left", "right", "a", "b", "i", "j",
-        "start", "end", "sender", "receiver", "caller", "callee", "parent", "child",
+        // No single letters: graphs with nodes named "a" or "u" are common.
+        "source", "target", "src", "dst", "dest", "from", "to", "node", "node1", "node2", "node_1",
+        "node_2", "id1", "id2", "head", "tail", "left", "right", "start", "end", "sender",
+        "receiver", "caller", "callee", "parent", "child",
     ];
     let mut s = s.trim_ascii();
     while let [b'"' | b'\'', rest @ ..] = s {

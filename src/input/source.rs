@@ -128,11 +128,17 @@ impl InputBytes {
         }
     }
 
-    /// Hand the mapping over (the store opener keeps it alive for zero-copy access).
-    pub(crate) fn into_mmap(self) -> Option<memmap2::Mmap> {
+    /// Hand the bytes over as a read-only map (the store opener keeps it alive for zero-copy
+    /// access). Bytes read from a pipe are copied into an anonymous map once.
+    pub(crate) fn into_map(self) -> std::io::Result<memmap2::Mmap> {
         match self.bytes {
-            Backing::Mapped(m) => Some(m),
-            Backing::Owned(_) => None,
+            Backing::Mapped(m) => Ok(m),
+            Backing::Owned(v) => {
+                let mut m = memmap2::MmapMut::map_anon(v.len().max(1))?;
+                m[..v.len()].copy_from_slice(&v);
+                let m = m.make_read_only()?;
+                Ok(m)
+            }
         }
     }
 }
