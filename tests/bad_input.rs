@@ -290,3 +290,32 @@ fn adjacency_larger_than_the_budget() {
     let e = load_bytes("big", text.as_bytes(), &opts).unwrap_err();
     assert!(e.to_string().contains("building the adjacency"), "{e}");
 }
+
+#[test]
+fn error_after_a_switch_to_text_ids_is_placed_correctly() {
+    // Found by fuzzing: when a piece stopped early to switch to text ids, an error in a later
+    // piece (run concurrently) was placed using the stopped piece's partial line count. Here
+    // piece 0 stops at line 5001 of 10001 while piece 1, holding the error, runs on the other
+    // thread.
+    let mut text = b"1 2\n".repeat(5000);
+    text.extend_from_slice(b"ann bo\n");
+    text.extend(b"1 2\n".repeat(5000));
+    let piece = text.len();
+    text.extend_from_slice(b"bad\n");
+    let opts = LoadOptions {
+        // Cut inside the last line of piece 0, so piece 1 starts exactly at `piece`.
+        piece_bytes: piece - 2,
+        ..LoadOptions::default()
+    };
+    let pool = rayon::ThreadPoolBuilder::new()
+        .num_threads(2)
+        .build()
+        .unwrap();
+    for _ in 0..20 {
+        let e = pool.install(|| load_bytes("t", &text, &opts)).unwrap_err();
+        let Error::Malformed { pos, .. } = e else {
+            panic!("{e:?}")
+        };
+        assert_eq!((pos.line, pos.byte), (10_002, piece as u64));
+    }
+}

@@ -554,7 +554,13 @@ impl<'a> Loader<'a> {
     fn check(&self, mut outcomes: Vec<ChunkOutcome>, info: source::DecodeInfo) -> Result<Scanned> {
         outcomes.sort_by_key(|o| o.index);
         let mut line_base = self.mtx.as_ref().map_or(0, |h| h.lines_before_body);
-        for o in &outcomes {
+        for (expected, o) in outcomes.iter().enumerate() {
+            // Pieces after a stop may be missing or have run anyway; only an unbroken run of
+            // pieces from the start places an error correctly, and a text-id stop hands over
+            // to the text pass, which finds any later error again.
+            if o.index != expected {
+                break;
+            }
             if let Some(f) = &o.error {
                 return Err(self.positioned(
                     &f.error,
@@ -562,6 +568,9 @@ impl<'a> Loader<'a> {
                     o.byte_base + f.offset as u64,
                     &f.excerpt,
                 ));
+            }
+            if o.stopped {
+                break;
             }
             line_base += o.counts.lines;
         }

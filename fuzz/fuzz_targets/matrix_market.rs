@@ -1,0 +1,43 @@
+//! Matrix Market reader: success exactly when the naive reference succeeds, with the same graph;
+//! every positioned error points inside the input.
+#![no_main]
+
+use libfuzzer_sys::fuzz_target;
+use plumb::Error;
+use plumb::ingest::{FormatChoice, LoadOptions, load_input, reference};
+use plumb::input::source::InputBytes;
+
+fuzz_target!(|data: &[u8]| {
+    // Start from a banner most of the time so the fuzzer explores entries, not just banners.
+    let mut text = Vec::new();
+    if data.first().is_some_and(|&b| b & 1 == 0) {
+        text.extend_from_slice(b"%%MatrixMarket matrix coordinate pattern general\n");
+    }
+    text.extend_from_slice(data.get(1..).unwrap_or_default());
+    let opts = LoadOptions {
+        format: FormatChoice::MatrixMarket,
+        piece_bytes: 7,
+        memory_budget: 1 << 30,
+        ..LoadOptions::default()
+    };
+    let fast = load_input(InputBytes::from_vec("fuzz.mtx", text.clone()), &opts, &plumb::progress::Quiet);
+    if plumb::input::source::sniff(&text) != plumb::input::source::Sniffed::Text {
+        // Compressed or store bytes: the reference reads only text; not panicking is the check.
+        return;
+    }
+    match (fast, reference::matrix_market(&text)) {
+        (Ok(g), Some(r)) => {
+            g.csr.verify().expect("a built graph satisfies every invariant");
+            assert_eq!(reference::view(&g), r);
+        }
+        (Err(e), r) => {
+            if let Error::MatrixMarket { pos, .. } | Error::Malformed { pos, .. } = &e {
+                assert!(pos.byte <= text.len() as u64 && pos.line >= 1, "{e}");
+            }
+            // Budget and size limits may refuse what the reference (which has none) accepts.
+            let limited = matches!(e, Error::OverBudget { .. } | Error::TooManyNodes { .. } | Error::Empty { .. });
+            assert!(r.is_none() || limited, "fast error {e} but the reference read it");
+        }
+        (Ok(g), None) => panic!("fast read {:?} but the reference refused", g.intake),
+    }
+});
