@@ -63,13 +63,19 @@ pub enum Error {
     #[error("{path}: the input holds no edges and no nodes ({detail})")]
     Empty { path: PathBuf, detail: String },
 
-    #[error("{path}: {format} stream is {problem} at compressed byte offset {offset}")]
+    #[error("{path}: {format} stream is {problem} (compressed byte offset {offset})")]
     Compressed {
         path: PathBuf,
         format: &'static str,
         problem: String,
         offset: u64,
     },
+
+    #[error(
+        "{path}: the input is {format}-compressed, which plumb does not read; decompress it, or \
+         recompress it with zstd or gzip"
+    )]
+    Unsupported { path: PathBuf, format: &'static str },
 
     #[error("{path}: {pos}: Matrix Market: {problem}")]
     MatrixMarket {

@@ -1,10 +1,11 @@
 //! Resource limits: how much memory a build may use, so that no claim in an input (a size
 //! line, a decompression bomb) can make plumb allocate without bound.
 
-/// A default memory budget: 90% of the memory available now (Linux `MemAvailable`), or 16 GiB
-/// where that cannot be read.
+/// A default memory budget: 90% of the memory available when first asked (Linux
+/// `MemAvailable`), or 16 GiB where that cannot be read. Read once per process.
 pub fn default_memory_budget() -> u64 {
-    available_memory().map_or(16 << 30, |b| b / 10 * 9)
+    static BUDGET: std::sync::OnceLock<u64> = std::sync::OnceLock::new();
+    *BUDGET.get_or_init(|| available_memory().map_or(16 << 30, |b| b / 10 * 9))
 }
 
 /// Bytes of memory available to new allocations, from `/proc/meminfo`.

@@ -130,8 +130,16 @@ fn truncated_and_corrupt_compressed_streams() {
 
 #[test]
 fn unsupported_compression_is_named() {
-    assert!(msg(b"\xfd7zXZ\x00\x00\x04").contains("xz"));
-    assert!(msg(b"BZh91AY&SY").contains("bzip2"));
+    for (bytes, name) in [
+        (&b"\xfd7zXZ\x00\x00\x04"[..], "xz"),
+        (b"BZh91AY&SY", "bzip2"),
+        (b"\x04\x22\x4d\x18", "lz4"),
+        (b"PK\x03\x04", "zip"),
+    ] {
+        let e = err(bytes);
+        assert!(matches!(e, Error::Unsupported { format, .. } if format == name));
+        assert!(e.to_string().contains(&format!("{name}-compressed")));
+    }
 }
 
 #[test]

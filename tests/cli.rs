@@ -96,6 +96,9 @@ fn exit_codes() {
     assert_eq!(missing.status.code(), Some(4));
     let usage = plumb(&["intake", "--no-such-flag", DEMO]);
     assert_eq!(usage.status.code(), Some(2));
+    let budget = plumb(&["intake", "--memory-budget", "64K", DEMO]);
+    assert_eq!(budget.status.code(), Some(5));
+    assert!(String::from_utf8_lossy(&budget.stderr).contains("memory budget"));
     let skipped = plumb_stdin(&["intake", "--skip-malformed", "-"], b"1 2\nthree\n");
     assert_eq!(skipped.status.code(), Some(0));
     assert!(String::from_utf8_lossy(&skipped.stdout).contains("skipped line 2"));

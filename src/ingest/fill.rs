@@ -228,6 +228,14 @@ mod tests {
     }
 
     #[test]
+    fn a_second_pass_that_disagrees_with_the_first_is_an_error() {
+        // Raw degrees promise two lines at node 0, but only one arrives (the file changed).
+        let f = Filler::new(&[2, 1, 1]);
+        f.edge(0, 1);
+        assert!(matches!(f.finish(), Err(e) if e.contains("modified while being read")));
+    }
+
+    #[test]
     fn fill_merges_repeats_and_reciprocals() {
         // Lines: 0-1, 1-0 (reciprocal), 0-1 (repeat), 1-2.
         let lines = [(0u32, 1u32), (1, 0), (0, 1), (1, 2)];

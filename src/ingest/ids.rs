@@ -22,6 +22,8 @@ pub struct IntTally {
     /// Ids waiting to be counted. Counting in batches, away from parsing, lets the processor
     /// overlap the cache misses of the random increments.
     pending: Vec<u64>,
+    /// Ids counted so far (the density gauge for growing `deg`).
+    counted: u64,
 }
 
 const BATCH: usize = 4096;
@@ -34,6 +36,7 @@ impl IntTally {
             sparse: FxHashMap::default(),
             loops: Vec::new(),
             pending: Vec::with_capacity(BATCH),
+            counted: 0,
         }
     }
 
@@ -53,6 +56,7 @@ impl IntTally {
     /// Count the pending ids.
     pub fn flush(&mut self) {
         let pending = std::mem::take(&mut self.pending);
+        self.counted += pending.len() as u64;
         for &id in &pending {
             self.bump(id);
         }
@@ -71,11 +75,14 @@ impl IntTally {
 
     #[cold]
     fn bump_slow(&mut self, id: u64) {
-        if id < self.cap {
+        // Grow the flat array only while it stays dense: up to 16 slots per id counted so far.
+        // A few large ids in a small or early input go to the map instead of a huge array.
+        let limit = self.cap.min(16 * self.counted + (1 << 16));
+        if id < limit {
             let want = (id + 1)
                 .max(2 * self.deg.len() as u64)
-                .max(1 << 16)
-                .min(self.cap);
+                .max(1 << 10)
+                .min(limit);
             self.deg.resize(want as usize, 0);
             self.deg[id as usize] += 1;
         } else {
@@ -122,6 +129,8 @@ impl IntIndex {
             base.deg.resize(n as usize + 1, 0);
         }
         let dense_len = base.deg.len();
+        // Ids that went to a map while the flat array was still short belong in the array now.
+        let own_sparse = std::mem::take(&mut base.sparse);
         let mut overflow: Option<u64> = None;
         for t in iter {
             // Element-wise sum of the flat arrays, in parallel.
@@ -152,6 +161,15 @@ impl IntIndex {
                 }
             }
             base.loops.extend(t.loops);
+        }
+        for (id, x) in own_sparse {
+            if id < dense_len as u64 {
+                let d = &mut base.deg[id as usize];
+                *d = d.saturating_add(x);
+            } else {
+                let d = base.sparse.entry(id).or_insert(0);
+                *d = d.saturating_add(x);
+            }
         }
         if let Some(id) = overflow.or_else(|| {
             base.deg
@@ -336,6 +354,39 @@ mod tests {
         for (i, &id) in idx.ids.iter().enumerate() {
             assert_eq!(idx.get(id), i as u32);
         }
+    }
+
+    #[test]
+    fn degree_overflow_is_reported_not_wrapped() {
+        let mut a = IntTally::new(100);
+        a.deg = vec![0; 10];
+        a.deg[5] = u32::MAX - 1;
+        a.edge(5, 6);
+        a.edge(5, 7);
+        match IntIndex::build(vec![a], None, MAX_NODES) {
+            Err(IndexFault::DegreeOverflow(id)) => assert_eq!(id, "5"),
+            _ => panic!("overflow not caught"),
+        }
+    }
+
+    #[test]
+    fn ids_mapped_before_the_flat_array_grew_are_found() {
+        // 200,000 starts in the map (the array may not grow that far yet), then enough small ids
+        // arrive for the array to cover it; it must be counted and ranked once.
+        let mut a = IntTally::new(1 << 30);
+        a.edge(200_000, 1);
+        a.flush();
+        for i in 0..20_000u64 {
+            a.edge(i, i + 1);
+        }
+        a.edge(200_000, 2);
+        let mut b = IntTally::new(1 << 30);
+        b.edge(200_000, 3);
+        let idx = IntIndex::build(vec![a, b], None, MAX_NODES).unwrap();
+        let r = idx.get(200_000);
+        assert_eq!(idx.ids[r as usize], 200_000);
+        assert_eq!(idx.raw_degree[r as usize], 3);
+        assert_eq!(idx.ids.len(), 20_002);
     }
 
     #[test]

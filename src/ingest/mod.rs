@@ -92,12 +92,10 @@ pub fn load(path: &Path, opts: &LoadOptions, progress: &dyn Progress) -> Result<
 pub fn load_input(input: InputBytes, opts: &LoadOptions, progress: &dyn Progress) -> Result<Graph> {
     let compression = match source::sniff(input.bytes()) {
         Sniffed::Store => return crate::store::open_input(input),
-        Sniffed::Unsupported(name) => {
-            return Err(Error::Compressed {
+        Sniffed::Unsupported(format) => {
+            return Err(Error::Unsupported {
                 path: input.path.clone(),
-                format: name,
-                problem: "compression that plumb does not read (it reads zstd and gzip)".into(),
-                offset: 0,
+                format,
             });
         }
         Sniffed::Text => Compression::None,
@@ -215,7 +213,7 @@ impl<'a> Loader<'a> {
             check_budget(
                 path,
                 opts,
-                format!("the {} nodes its size line declares", h.rows),
+                format!("holding the {} nodes its size line declares", h.rows),
                 (h.rows + 1).saturating_mul(BYTES_PER_NODE),
             )?;
             rules.body_start = h.body_start as u64;
@@ -282,7 +280,7 @@ impl<'a> Loader<'a> {
             Some(h) => h.rows + 1,
             None => (self.src.data.len() as u64 * if keep { 16 } else { 4 })
                 .min(per_worker)
-                .max(1 << 24),
+                .max(1 << 16),
         };
         // Compressed input keeps its edges; a decompression bomb must not exhaust memory.
         let kept_bytes = AtomicU64::new(0);
@@ -330,9 +328,10 @@ impl<'a> Loader<'a> {
 
         self.progress.stage("indexing ids", None, Unit::Items);
         if over_budget.load(Ordering::Relaxed) {
+            // The kept edges and the adjacency built from them live together: about twice.
             return Err(self.over_budget(
-                "keeping the decompressed edges between passes",
-                kept_bytes.load(Ordering::Relaxed),
+                "building from the decompressed edges",
+                2 * kept_bytes.load(Ordering::Relaxed),
             ));
         }
         let index = IntIndex::build(tallies, self.mtx.as_ref().map(|h| h.rows), self.max_nodes())
@@ -502,8 +501,15 @@ impl<'a> Loader<'a> {
             return Err(Error::Empty {
                 path: self.input.path.clone(),
                 detail: format!(
-                    "{} lines: {} comments, {} blank, {} malformed skipped",
-                    total.lines, total.comments, total.blank, total.malformed
+                    "{}: {}, {}, {}",
+                    plural(total.lines, "line", "lines"),
+                    plural(total.comments, "comment", "comments"),
+                    plural(total.blank, "blank line", "blank lines"),
+                    plural(
+                        total.malformed,
+                        "malformed line skipped",
+                        "malformed lines skipped"
+                    ),
                 ),
             });
         }
@@ -699,6 +705,14 @@ impl<'a> Loader<'a> {
                 limit: u32::MAX as u64 - 1,
             },
         }
+    }
+}
+
+fn plural(n: u64, one: &str, many: &str) -> String {
+    if n == 1 {
+        format!("1 {one}")
+    } else {
+        format!("{n} {many}")
     }
 }
 

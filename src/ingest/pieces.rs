@@ -59,27 +59,28 @@ pub fn run<W: Send>(
         Compression::None => {
             let pieces = split_at_newlines(src.data, src.piece);
             let next = AtomicUsize::new(0);
+            let worker = || {
+                let mut st = init();
+                loop {
+                    let i = next.fetch_add(1, Ordering::Relaxed);
+                    let Some(&(a, b)) = pieces.get(i) else { break };
+                    if stopped_before(i) {
+                        break;
+                    }
+                    if !work(&mut st, i, &src.data[a..b], a as u64) {
+                        stop(i);
+                    }
+                    progress.advance((b - a) as u64);
+                }
+                st
+            };
+            // This thread is one of the workers; small inputs spawn no thread at all.
+            let helpers = threads.min(pieces.len()).saturating_sub(1);
             let states = std::thread::scope(|s| {
-                let handles: Vec<_> = (0..threads)
-                    .map(|_| {
-                        s.spawn(|| {
-                            let mut st = init();
-                            loop {
-                                let i = next.fetch_add(1, Ordering::Relaxed);
-                                let Some(&(a, b)) = pieces.get(i) else { break };
-                                if stopped_before(i) {
-                                    break;
-                                }
-                                if !work(&mut st, i, &src.data[a..b], a as u64) {
-                                    stop(i);
-                                }
-                                progress.advance((b - a) as u64);
-                            }
-                            st
-                        })
-                    })
-                    .collect();
-                join_all(handles)
+                let handles: Vec<_> = (0..helpers).map(|_| s.spawn(worker)).collect();
+                let mut states = vec![worker()];
+                states.extend(join_all(handles));
+                states
             });
             let info = DecodeInfo {
                 frames: 0,

@@ -280,7 +280,7 @@ pub fn decode_chunks(
                         }
                     })?;
                 if !stream_into(dec, &mut st, emit, |e| StreamFault::Codec {
-                    problem: format!("corrupt ({e})"),
+                    problem: format!("corrupt in the frame starting at byte {start} ({e})"),
                     offset: start as u64,
                 })? {
                     return Ok(info);
@@ -358,13 +358,19 @@ pub fn zstd_frames(data: &[u8]) -> Result<Vec<(usize, usize)>, StreamFault> {
         let rest = &data[pos..];
         let len = zstd::zstd_safe::find_frame_compressed_size(rest).map_err(|code| {
             let name = zstd::zstd_safe::get_error_name(code);
-            StreamFault::Codec {
-                problem: if name.contains("Src size is incorrect") || rest.len() < 18 {
-                    "truncated (the last frame is incomplete)".to_string()
-                } else {
-                    format!("corrupt ({name})")
-                },
-                offset: pos as u64,
+            if name.contains("Src size is incorrect") || rest.len() < 18 {
+                StreamFault::Codec {
+                    problem: format!(
+                        "truncated: the frame starting at byte {pos} is cut off at the end of \
+                         the file"
+                    ),
+                    offset: data.len() as u64,
+                }
+            } else {
+                StreamFault::Codec {
+                    problem: format!("corrupt in the frame starting at byte {pos} ({name})"),
+                    offset: pos as u64,
+                }
             }
         })?;
         // Skippable frames carry no data.
@@ -394,7 +400,7 @@ fn decode_zstd_frame(frame: &[u8], offset: u64) -> Result<Vec<u8>, StreamFault> 
             offset,
         })?;
     dec.read_to_end(&mut out).map_err(|e| StreamFault::Codec {
-        problem: format!("corrupt ({e})"),
+        problem: format!("corrupt in the frame starting at byte {offset} ({e})"),
         offset,
     })?;
     Ok(out)
