@@ -7,7 +7,11 @@ use plumb::Error;
 use plumb::ingest::{LoadOptions, load_input, reference};
 use plumb::input::source::InputBytes;
 
-fuzz_target!(|data: &[u8]| {
+fuzz_target!(init: {
+    // One worker: idle pool threads would spin between runs and slow fuzzing several-fold.
+    // Interleavings across threads are covered by the tests in tests/.
+    let _ = rayon::ThreadPoolBuilder::new().num_threads(1).build_global();
+}, |data: &[u8]| {
     // The first byte picks the piece size so chunk boundaries land everywhere.
     let (piece, text) = match data.split_first() {
         Some((&p, rest)) => (1 + p as usize, rest),

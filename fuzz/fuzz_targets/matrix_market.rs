@@ -7,7 +7,9 @@ use plumb::Error;
 use plumb::ingest::{FormatChoice, LoadOptions, load_input, reference};
 use plumb::input::source::InputBytes;
 
-fuzz_target!(|data: &[u8]| {
+fuzz_target!(init: {
+    let _ = rayon::ThreadPoolBuilder::new().num_threads(1).build_global();
+}, |data: &[u8]| {
     // Start from a banner most of the time so the fuzzer explores entries, not just banners.
     let mut text = Vec::new();
     if data.first().is_some_and(|&b| b & 1 == 0) {

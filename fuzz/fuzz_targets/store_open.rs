@@ -5,7 +5,9 @@
 use libfuzzer_sys::fuzz_target;
 use plumb::input::source::InputBytes;
 
-fuzz_target!(|data: &[u8]| {
+fuzz_target!(init: {
+    let _ = rayon::ThreadPoolBuilder::new().num_threads(1).build_global();
+}, |data: &[u8]| {
     if let Ok(g) = plumb::store::open_input(InputBytes::from_vec("fuzz.plumb", data.to_vec())) {
         // Opening checked offsets and neighbour indices, so walking everything cannot panic.
         let mut sum = 0u64;

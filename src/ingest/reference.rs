@@ -83,9 +83,9 @@ fn as_int(t: &[u8]) -> Option<u64> {
     std::str::from_utf8(t).ok()?.parse().ok()
 }
 
-/// Read an edge list with the default options (header guessed, strict about malformed lines).
-pub fn edge_list(data: &[u8]) -> Result<RefGraph, RefError> {
-    let mut lines: Vec<(u64, &[u8])> = Vec::new();
+/// Lines of `data` with the byte offset where each starts (a final newline ends the last line).
+fn split_lines(data: &[u8]) -> Vec<(u64, &[u8])> {
+    let mut lines = Vec::new();
     let mut offset = 0u64;
     for raw in data.split(|&c| c == b'\n') {
         lines.push((offset, raw));
@@ -94,31 +94,48 @@ pub fn edge_list(data: &[u8]) -> Result<RefGraph, RefError> {
     if data.ends_with(b"\n") {
         lines.pop();
     }
-    let strip = |l: &[u8]| l.strip_suffix(b"\r").unwrap_or(l).to_vec();
-    let is_data = |l: &[u8]| {
-        let t: Vec<u8> = l.iter().copied().skip_while(|&c| is_blank(c)).collect();
-        !(t.is_empty() || t[0] == b'#' || t[0] == b'%')
-    };
+    lines
+}
+
+fn strip_cr(l: &[u8]) -> &[u8] {
+    l.strip_suffix(b"\r").unwrap_or(l)
+}
+
+fn is_data(l: &[u8]) -> bool {
+    let t: Vec<u8> = l.iter().copied().skip_while(|&c| is_blank(c)).collect();
+    !(t.is_empty() || t[0] == b'#' || t[0] == b'%')
+}
+
+/// The two id fields of every data line, as written, skipping line number `skip` (1-based);
+/// or the first malformed line.
+pub fn edge_tokens(data: &[u8], skip: Option<u64>) -> Result<Vec<(Vec<u8>, Vec<u8>)>, RefError> {
+    let mut pairs = Vec::new();
+    for (i, &(byte, raw)) in split_lines(data).iter().enumerate() {
+        let l = strip_cr(raw);
+        if Some(i as u64 + 1) == skip || !is_data(l) {
+            continue;
+        }
+        let (f, _) = fields(l).ok_or(RefError {
+            line: i as u64 + 1,
+            byte,
+        })?;
+        pairs.push((f[0].to_vec(), f[1].to_vec()));
+    }
+    Ok(pairs)
+}
+
+/// Read an edge list with the default options (header guessed, strict about malformed lines).
+pub fn edge_list(data: &[u8]) -> Result<RefGraph, RefError> {
+    let lines = split_lines(data);
     let data_lines: Vec<usize> = (0..lines.len())
-        .filter(|&i| is_data(&strip(lines[i].1)))
+        .filter(|&i| is_data(strip_cr(lines[i].1)))
         .take(2)
         .collect();
     // The header guess is policy, not parsing: the reference applies the same rule.
     let header = data_lines.first().copied().filter(|&i| {
         edgeline::looks_like_header(lines[i].1, data_lines.get(1).map(|&j| lines[j].1))
     });
-    let mut pairs: Vec<(Vec<u8>, Vec<u8>)> = Vec::new();
-    for (i, &(byte, raw)) in lines.iter().enumerate() {
-        let l = strip(raw);
-        if Some(i) == header || !is_data(&l) {
-            continue;
-        }
-        let (f, _) = fields(&l).ok_or(RefError {
-            line: i as u64 + 1,
-            byte,
-        })?;
-        pairs.push((f[0].to_vec(), f[1].to_vec()));
-    }
+    let pairs = edge_tokens(data, header.map(|i| i as u64 + 1))?;
     let all_int = pairs
         .iter()
         .all(|(a, b)| as_int(a).is_some() && as_int(b).is_some());
