@@ -106,9 +106,12 @@ fn is_data(l: &[u8]) -> bool {
     !(t.is_empty() || t[0] == b'#' || t[0] == b'%')
 }
 
-/// The two id fields of every data line, as written, skipping line number `skip` (1-based);
-/// or the first malformed line.
-pub fn edge_tokens(data: &[u8], skip: Option<u64>) -> Result<Vec<(Vec<u8>, Vec<u8>)>, RefError> {
+/// The two id fields of a data line, as written.
+pub type TokenPair = (Vec<u8>, Vec<u8>);
+
+/// The two id fields of every data line, skipping line number `skip` (1-based); or the first
+/// malformed line.
+pub fn edge_tokens(data: &[u8], skip: Option<u64>) -> Result<Vec<TokenPair>, RefError> {
     let mut pairs = Vec::new();
     for (i, &(byte, raw)) in split_lines(data).iter().enumerate() {
         let l = strip_cr(raw);
