@@ -4,18 +4,29 @@
 //! Start with [`ingest::load`], which reads an edge file (plain, zstd or gzip; edge list or
 //! Matrix Market) or a store file into a [`Graph`].
 
+pub mod bfs;
+pub mod clustering;
+pub mod components;
 pub mod csr;
+pub mod degrees;
 pub mod demo;
+pub mod diameter;
+pub mod distances;
 pub mod error;
+pub mod figure;
 pub mod graph;
 pub mod ingest;
 pub mod input;
 pub mod intake;
 pub mod limits;
+pub mod numeric;
 pub mod outfile;
+pub mod pernode;
+pub mod profile;
 pub mod progress;
 pub mod slab;
 pub mod store;
+pub mod triangles;
 
 pub use error::{Error, Result};
 pub use graph::Graph;

@@ -38,6 +38,22 @@ pub struct Args {
 
 #[derive(Subcommand, Debug)]
 enum Command {
+    /// Profile a graph: size and degrees, components, triangles and clustering, distances.
+    Profile {
+        #[command(flatten)]
+        input: InputArgs,
+        /// Print the profile as JSON instead of text.
+        #[arg(long)]
+        json: bool,
+        /// Also write one row per node (id, degree, triangles, clustering, component,
+        /// eccentricity) as TSV; zstd-compressed when the name ends in .zst.
+        #[arg(long, value_name = "FILE")]
+        per_node: Option<PathBuf>,
+        /// Work allowed for exact all-pairs distances (64-bit word operations, e.g. 2e11);
+        /// beyond it they are skipped and the report says so.
+        #[arg(long, value_name = "OPS", default_value_t = plumb::profile::DEFAULT_EXACT_BUDGET)]
+        exact_budget: f64,
+    },
     /// Read an edge file and show what was read: sizes, cleaning counts, degrees, timings.
     Intake {
         #[command(flatten)]
@@ -154,6 +170,25 @@ pub fn run(args: Args) -> Result<ExitCode, Error> {
     }
     let bars = bars::Bars::new(args.quiet);
     match args.command {
+        Command::Profile {
+            input,
+            json,
+            per_node,
+            exact_budget,
+        } => {
+            let g = ingest::load(&input.input, &input.options(), &bars)?;
+            let opts = plumb::profile::ProfileOptions { exact_budget };
+            let (p, table) = plumb::profile::profile(&g, &opts, &bars);
+            if let Some(path) = &per_node {
+                plumb::pernode::write(&g, &table, path)?;
+            }
+            let text = if json {
+                show::profile_json(&p)
+            } else {
+                show::profile_text(&g, &p, per_node.as_deref())
+            };
+            print!("{text}");
+        }
         Command::Intake { input, json } => {
             let g = ingest::load(&input.input, &input.options(), &bars)?;
             let text = if json {
@@ -169,7 +204,7 @@ pub fn run(args: Args) -> Result<ExitCode, Error> {
             let bytes = plumb::store::write(&g, &out)?;
             print!("{}", show::intake_text(&g));
             println!(
-                "  {:<9}{} ({}) in {:.2} s",
+                "  {:<11}{} ({}) in {:.2} s",
                 "wrote",
                 out.display(),
                 show::bytes(bytes),

@@ -5,6 +5,7 @@ use std::fmt::Write as _;
 use plumb::Graph;
 use plumb::input::source::Compression;
 use plumb::intake::{IdKind, InputFormat};
+use plumb::profile::{Distances, Profile};
 
 /// 1234567 -> "1,234,567".
 pub fn count(n: u64) -> String {
@@ -36,7 +37,7 @@ pub fn bytes(b: u64) -> String {
 }
 
 fn row(out: &mut String, label: &str, text: impl AsRef<str>) {
-    let _ = writeln!(out, "  {label:<9}{}", text.as_ref());
+    let _ = writeln!(out, "  {label:<11}{}", text.as_ref());
 }
 
 pub fn intake_text(g: &Graph) -> String {
@@ -171,6 +172,202 @@ pub fn intake_text(g: &Graph) -> String {
         );
     }
     out
+}
+
+fn section(out: &mut String, title: &str) {
+    let _ = writeln!(out, "  ── {title}");
+}
+
+fn fixed(v: f64, places: usize) -> String {
+    format!("{v:.places$}")
+}
+
+pub fn profile_text(g: &Graph, p: &Profile, per_node: Option<&std::path::Path>) -> String {
+    let mut out = intake_text(g).replacen("plumb intake ·", "plumb profile ·", 1);
+    let d = &p.degrees;
+    section(&mut out, "size and degrees");
+    row(
+        &mut out,
+        "size",
+        format!(
+            "{} nodes · {} edges · density {:.3e} · {} isolated",
+            count(d.nodes),
+            count(d.edges),
+            d.density,
+            count(d.isolated)
+        ),
+    );
+    row(
+        &mut out,
+        "degree",
+        format!(
+            "min {} · mean {:.3} · max {} · <k²> {:.2} · assortativity {}",
+            count(d.min as u64),
+            d.mean,
+            count(d.max as u64),
+            d.second_moment,
+            d.assortativity
+                .map_or("undefined".to_string(), |r| format!("{r:+.4}"))
+        ),
+    );
+    let bins: Vec<String> = d
+        .log_bins
+        .iter()
+        .map(|b| {
+            if b.low == b.high {
+                format!("{}: {}", b.low, count(b.nodes))
+            } else {
+                format!("{}–{}: {}", b.low, b.high, count(b.nodes))
+            }
+        })
+        .collect();
+    row(&mut out, "by degree", bins.join(" · "));
+    let c = &p.components;
+    section(&mut out, "components");
+    row(
+        &mut out,
+        "count",
+        format!(
+            "{} · giant {} nodes ({:.2}%), {} edges · {} singletons",
+            count(c.count),
+            count(c.giant_nodes),
+            100.0 * c.giant_fraction,
+            count(c.giant_edges),
+            count(c.singletons)
+        ),
+    );
+    let k = &p.clustering;
+    section(&mut out, "clustering (exact, forward triangle listing)");
+    row(
+        &mut out,
+        "triangles",
+        format!(
+            "{} · wedges {} · transitivity {}",
+            count(k.triangles.value as u64),
+            k.wedges,
+            fixed(k.transitivity.value, 6)
+        ),
+    );
+    row(
+        &mut out,
+        "local",
+        format!(
+            "average {} with degree<2 as 0 ({} nodes) · {} over degree≥2 only ({} nodes)",
+            fixed(k.average_zeros.value, 6),
+            count(k.average_zeros.sample_size.unwrap_or(0)),
+            fixed(k.average_deg2.value, 6),
+            count(k.average_deg2.sample_size.unwrap_or(0))
+        ),
+    );
+    let ck: Vec<String> = k
+        .by_degree
+        .iter()
+        .map(|b| format!("{}–{}: {:.3}", b.low, b.high, b.mean))
+        .collect();
+    row(&mut out, "C(k)", ck.join(" · "));
+    section(
+        &mut out,
+        &format!("distances on the {}", p.distance_node_set),
+    );
+    if let Some(dm) = &p.diameter {
+        row(
+            &mut out,
+            "diameter",
+            format!(
+                "{} (exact: double-sweep bound {}, then iFUB; {} BFS runs)",
+                dm.diameter.value,
+                dm.double_sweep_bound,
+                count(dm.bfs_runs)
+            ),
+        );
+    }
+    match &p.distances {
+        Distances::Exact(s) => {
+            row(
+                &mut out,
+                "mean",
+                format!(
+                    "{} over {} ordered pairs (exact, all-pairs BFS)",
+                    fixed(s.mean.value, 6),
+                    count(s.pairs)
+                ),
+            );
+            if let Some(r) = &s.radius {
+                row(&mut out, "radius", format!("{}", r.value));
+            }
+            row(
+                &mut out,
+                "effective",
+                format!(
+                    "diameter {:.3} (90% of pairs, interpolated, self pairs excluded; {:.3} with them)",
+                    s.effective_diameter.value, s.effective_diameter_with_self
+                ),
+            );
+            let dist: Vec<String> = s
+                .distribution
+                .iter()
+                .enumerate()
+                .skip(1)
+                .map(|(d, &c)| format!("{d}: {}", count(c / 2)))
+                .collect();
+            row(
+                &mut out,
+                "pairs at d",
+                format!("{} (unordered)", dist.join(" · ")),
+            );
+            if s.unreachable_pairs_in_graph > 0 {
+                row(
+                    &mut out,
+                    "unreached",
+                    format!(
+                        "{} unordered pairs of the whole graph are in different components",
+                        count(s.unreachable_pairs_in_graph / 2)
+                    ),
+                );
+            }
+        }
+        Distances::OverBudget {
+            estimated_cost,
+            budget,
+        } => row(
+            &mut out,
+            "mean",
+            format!(
+                "not computed: exact all-pairs needs about {estimated_cost:.2e} operations, over \
+                 the budget of {budget:.2e} (--exact-budget)"
+            ),
+        ),
+        Distances::Empty => row(&mut out, "mean", "no pairs: the graph has no edges"),
+    }
+    let parts: Vec<String> = p
+        .stages
+        .iter()
+        .map(|s| format!("{} {:.2} s", s.name, s.seconds))
+        .collect();
+    row(&mut out, "time", parts.join(" · "));
+    if let Some(path) = per_node {
+        row(
+            &mut out,
+            "per node",
+            format!("written to {}", path.display()),
+        );
+    }
+    out
+}
+
+pub fn profile_json(p: &Profile) -> String {
+    #[derive(serde::Serialize)]
+    struct Out<'a> {
+        plumb_version: &'static str,
+        profile: &'a Profile,
+    }
+    let mut s = serde_json::to_string_pretty(&Out {
+        plumb_version: env!("CARGO_PKG_VERSION"),
+        profile: p,
+    })
+    .unwrap_or_default();
+    s.push('\n');
+    s
 }
 
 pub fn intake_json(g: &Graph) -> String {

@@ -1,0 +1,162 @@
+//! Exact triangle counting, in total and per node, by the forward (compact-forward) algorithm:
+//! orient every edge from lower to higher (degree, index) rank, so every node keeps at most
+//! sqrt(2m) out-neighbours, then count |N+(u) ∩ N+(v)| over oriented edges by merging sorted
+//! lists. Each triangle is found exactly once. Schank & Wagner, "Finding, counting and listing
+//! all triangles in large graphs, an experimental study", WEA 2005; Latapy, "Main-memory triangle
+//! computations for very large (sparse (power-law)) graphs", Theor. Comput. Sci. 407 (2008).
+
+use std::sync::atomic::{AtomicU64, Ordering::Relaxed};
+
+use rayon::prelude::*;
+
+use crate::csr::Csr;
+
+/// Triangles in total and through each node.
+#[derive(Debug, Clone, PartialEq)]
+pub struct Triangles {
+    pub total: u64,
+    /// `per_node[v]` = triangles containing v.
+    pub per_node: Vec<u64>,
+}
+
+/// Orientation: keep edge u -> v when (deg u, u) < (deg v, v).
+fn oriented(g: &Csr) -> (Vec<u64>, Vec<u32>) {
+    let n = g.node_count();
+    let deg = |u: u32| g.degree(u);
+    let higher = |u: u32, v: u32| (deg(u), u) < (deg(v), v);
+    let lists: Vec<Vec<u32>> = (0..n as u32)
+        .into_par_iter()
+        .map(|u| {
+            g.neighbors(u)
+                .iter()
+                .copied()
+                .filter(|&v| higher(u, v))
+                .collect()
+        })
+        .collect();
+    let mut offsets = Vec::with_capacity(n + 1);
+    offsets.push(0u64);
+    let mut targets = Vec::with_capacity(g.edge_count() as usize);
+    for l in lists {
+        targets.extend_from_slice(&l);
+        offsets.push(targets.len() as u64);
+    }
+    (offsets, targets)
+}
+
+/// Count common elements of two ascending lists, calling `hit` for each.
+#[inline]
+fn intersect(a: &[u32], b: &[u32], mut hit: impl FnMut(u32)) -> u64 {
+    let (mut i, mut j, mut c) = (0, 0, 0);
+    while i < a.len() && j < b.len() {
+        match a[i].cmp(&b[j]) {
+            std::cmp::Ordering::Less => i += 1,
+            std::cmp::Ordering::Greater => j += 1,
+            std::cmp::Ordering::Equal => {
+                hit(a[i]);
+                c += 1;
+                i += 1;
+                j += 1;
+            }
+        }
+    }
+    c
+}
+
+/// Exact triangle counts. Integer counts, so identical on any thread count.
+pub fn count(g: &Csr) -> Triangles {
+    let n = g.node_count();
+    let (off, tgt) = oriented(g);
+    let out = |u: u32| &tgt[off[u as usize] as usize..off[u as usize + 1] as usize];
+    let per: Vec<AtomicU64> = (0..n).map(|_| AtomicU64::new(0)).collect();
+    let total: u64 = (0..n as u32)
+        .into_par_iter()
+        .with_min_len(256)
+        .map(|u| {
+            let nu = out(u);
+            let mut at_u = 0u64;
+            for &v in nu {
+                let found = intersect(nu, out(v), |w| {
+                    per[w as usize].fetch_add(1, Relaxed);
+                });
+                if found > 0 {
+                    per[v as usize].fetch_add(found, Relaxed);
+                    at_u += found;
+                }
+            }
+            if at_u > 0 {
+                per[u as usize].fetch_add(at_u, Relaxed);
+            }
+            at_u
+        })
+        .sum();
+    Triangles {
+        total,
+        per_node: per.into_iter().map(AtomicU64::into_inner).collect(),
+    }
+}
+
+/// Count only the total (no per-node array): the fastest path for transitivity.
+pub fn total(g: &Csr) -> u64 {
+    let (off, tgt) = oriented(g);
+    let out = |u: u32| &tgt[off[u as usize] as usize..off[u as usize + 1] as usize];
+    (0..g.node_count() as u32)
+        .into_par_iter()
+        .with_min_len(256)
+        .map(|u| {
+            let nu = out(u);
+            nu.iter()
+                .map(|&v| intersect(nu, out(v), |_| {}))
+                .sum::<u64>()
+        })
+        .sum()
+}
+
+/// The obvious O(sum d^2) count over neighbour pairs, for testing the fast path.
+pub fn naive(g: &Csr) -> Triangles {
+    let n = g.node_count();
+    let mut per = vec![0u64; n];
+    let mut total = 0;
+    for u in 0..n as u32 {
+        let nu = g.neighbors(u);
+        for (i, &v) in nu.iter().enumerate() {
+            for &w in &nu[i + 1..] {
+                if g.neighbors(v).binary_search(&w).is_ok() {
+                    per[u as usize] += 1;
+                    if u < v && u < w {
+                        total += 1;
+                    }
+                }
+            }
+        }
+    }
+    Triangles {
+        total,
+        per_node: per,
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn small_graphs() {
+        // Complete graph K5: C(5,3) = 10 triangles, 6 through each node.
+        let k5: Vec<(u32, u32)> = (0..5)
+            .flat_map(|a| (a + 1..5).map(move |b| (a, b)))
+            .collect();
+        let g = Csr::from_edges(5, &k5);
+        let t = count(&g);
+        assert_eq!(t.total, 10);
+        assert_eq!(t.per_node, vec![6; 5]);
+        assert_eq!(total(&g), 10);
+        assert_eq!(naive(&g), t);
+        // Two triangles sharing an edge, plus a pendant.
+        let g = Csr::from_edges(5, &[(0, 1), (1, 2), (2, 0), (1, 3), (3, 2), (3, 4)]);
+        let t = count(&g);
+        assert_eq!(t.total, 2);
+        assert_eq!(t.per_node, vec![1, 2, 2, 1, 0]);
+        assert_eq!(naive(&g), t);
+    }
+}
