@@ -14,6 +14,7 @@ pub mod diameter;
 pub mod distances;
 pub mod error;
 pub mod figure;
+pub mod generate;
 pub mod graph;
 pub mod ingest;
 pub mod input;

@@ -10,7 +10,7 @@ pub mod pieces;
 pub mod reference;
 pub mod scan;
 
-mod fill;
+pub mod fill;
 
 use std::borrow::Cow;
 use std::path::Path;
