@@ -216,6 +216,30 @@ fn merge_distinct(a: &[u32], b: &[u32], out: &mut Vec<u32>) -> u64 {
     distinct_a
 }
 
+/// Build the simple undirected graph on nodes `0..n` from edge pairs (self-loops dropped,
+/// repeats merged), in parallel. Generators and tests use it; readers use [`Filler`] directly.
+pub fn csr_from_pairs(n: usize, pairs: &[(u32, u32)]) -> crate::csr::Csr {
+    let raw: Vec<u32> = {
+        let counts: Vec<std::sync::atomic::AtomicU32> = atomic_zeroed(n);
+        pairs.par_iter().for_each(|&(u, v)| {
+            if u != v {
+                counts[u as usize].fetch_add(1, Relaxed);
+                counts[v as usize].fetch_add(1, Relaxed);
+            }
+        });
+        plain(counts)
+    };
+    let f = Filler::new(&raw);
+    pairs.par_chunks(4096).for_each(|c| {
+        let batch: Vec<(u32, u32)> = c.iter().copied().filter(|&(u, v)| u != v).collect();
+        f.edges(&batch);
+    });
+    let done = f
+        .finish()
+        .expect("the pairs are counted and filled from the same slice");
+    crate::csr::Csr::from_parts(done.offsets.into(), done.targets.into())
+}
+
 #[cfg(test)]
 mod tests {
     use super::*;
@@ -254,28 +278,4 @@ mod tests {
         // Distinct directed pairs: 0->1, 1->0, 1->2.
         assert_eq!(done.directed_pairs, 3);
     }
-}
-
-/// Build the simple undirected graph on nodes `0..n` from edge pairs (self-loops dropped,
-/// repeats merged), in parallel. Generators and tests use it; readers use [`Filler`] directly.
-pub fn csr_from_pairs(n: usize, pairs: &[(u32, u32)]) -> crate::csr::Csr {
-    let raw: Vec<u32> = {
-        let counts: Vec<std::sync::atomic::AtomicU32> = atomic_zeroed(n);
-        pairs.par_iter().for_each(|&(u, v)| {
-            if u != v {
-                counts[u as usize].fetch_add(1, Relaxed);
-                counts[v as usize].fetch_add(1, Relaxed);
-            }
-        });
-        plain(counts)
-    };
-    let f = Filler::new(&raw);
-    pairs.par_chunks(4096).for_each(|c| {
-        let batch: Vec<(u32, u32)> = c.iter().copied().filter(|&(u, v)| u != v).collect();
-        f.edges(&batch);
-    });
-    let done = f
-        .finish()
-        .expect("the pairs are counted and filled from the same slice");
-    crate::csr::Csr::from_parts(done.offsets.into(), done.targets.into())
 }
