@@ -20,14 +20,23 @@ pub struct AllPairs {
 
 /// Distances over all pairs of `g`, which must be connected (callers pass the giant component).
 pub fn all_pairs(g: &Csr) -> AllPairs {
+    all_pairs_sources(g, 0..g.node_count() as u32)
+}
+
+/// Distances from the sources in `sources` to every node (pairs counted from those sources only;
+/// eccentricities of those sources only).
+pub fn all_pairs_sources(g: &Csr, sources: std::ops::Range<u32>) -> AllPairs {
     let n = g.node_count();
-    let batches = n.div_ceil(64);
+    let (lo, hi) = (sources.start as usize, (sources.end as usize).min(n));
+    let batches = hi.saturating_sub(lo).div_ceil(64);
     let results: Vec<(Vec<u64>, Vec<u32>)> = (0..batches)
         .into_par_iter()
         .map_init(
             || (vec![0u64; n], vec![0u64; n], vec![0u64; n]),
             |(seen, frontier, next), b| {
-                batch(g, b * 64, ((b + 1) * 64).min(n), seen, frontier, next)
+                let a = lo + b * 64;
+                let sources: Vec<u32> = (a as u32..(a + 64).min(hi) as u32).collect();
+                sources_batch(g, &sources, seen, frontier, next)
             },
         )
         .collect();
@@ -48,23 +57,23 @@ pub fn all_pairs(g: &Csr) -> AllPairs {
     }
 }
 
-/// One batch of up to 64 sources `lo..hi`: returns ordered-pair counts by distance and the
-/// sources' eccentricities.
-fn batch(
+/// One batch of up to 64 sources (distinct): returns ordered-pair counts by distance from them
+/// and their eccentricities. The three buffers have one word per node and are reused.
+pub fn sources_batch(
     g: &Csr,
-    lo: usize,
-    hi: usize,
+    sources: &[u32],
     seen: &mut [u64],
     frontier: &mut Vec<u64>,
     next: &mut Vec<u64>,
 ) -> (Vec<u64>, Vec<u32>) {
-    let k = hi - lo;
+    let k = sources.len();
+    assert!(k <= 64, "a batch holds at most 64 sources");
     let full = if k == 64 { u64::MAX } else { (1u64 << k) - 1 };
     seen.fill(0);
     frontier.fill(0);
-    for (i, s) in (lo..hi).enumerate() {
-        seen[s] |= 1 << i;
-        frontier[s] |= 1 << i;
+    for (i, &s) in sources.iter().enumerate() {
+        seen[s as usize] |= 1 << i;
+        frontier[s as usize] |= 1 << i;
     }
     let o = g.offsets();
     let t = g.targets();

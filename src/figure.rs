@@ -12,6 +12,9 @@ pub enum Method {
     Exact { algorithm: String },
     /// Estimated by the named estimator.
     Estimate { estimator: String },
+    /// Not computed exactly, but certainly within the interval (level 1): the value is the
+    /// lower bound.
+    Bounds { algorithm: String },
 }
 
 /// A two-sided confidence interval.
@@ -72,6 +75,23 @@ impl Figure {
             sample_size: Some(sample_size),
             std_error: Some(std_error),
             interval: Some(interval),
+        }
+    }
+
+    /// A figure known only to lie in `[low, high]` for certain.
+    pub fn bounds(low: f64, high: f64, algorithm: &str) -> Self {
+        Figure {
+            value: low,
+            method: Method::Bounds {
+                algorithm: algorithm.to_string(),
+            },
+            sample_size: None,
+            std_error: None,
+            interval: Some(Interval {
+                low,
+                high,
+                level: 1.0,
+            }),
         }
     }
 

@@ -16,7 +16,10 @@ pub fn ring_lattice(n: u32, k: u32) -> Csr {
 }
 
 fn lattice_pairs(n: u32, k: u32) -> Vec<(u32, u32)> {
-    assert!(k.is_multiple_of(2) && k < n, "ring lattice needs an even k below n");
+    assert!(
+        k.is_multiple_of(2) && k < n,
+        "ring lattice needs an even k below n"
+    );
     (0..n)
         .flat_map(|i| (1..=k / 2).map(move |j| (i, (i + j) % n)))
         .collect()

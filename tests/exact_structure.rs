@@ -269,3 +269,28 @@ fn over_budget_distances_are_skipped_and_said() {
     // The diameter is still exact (a handful of BFS runs): ceil(1000 / 5).
     assert_eq!(p.diameter.unwrap().diameter.value, 200.0);
 }
+
+#[test]
+fn diameter_under_a_small_budget_is_bounded_never_guessed() {
+    // A random graph has fat outer BFS levels, where iFUB needs many searches.
+    let g = graph(generate::gnm(3000, 9000, 5));
+    let truth = {
+        let c = plumb::components::components(&g.csr);
+        let sub = plumb::components::induced(&g.csr, &c.giant_nodes());
+        plumb::diameter::diameter(&sub).lower as f64
+    };
+    let (p, _) = profile(
+        &g,
+        &ProfileOptions { exact_budget: 2e7 },
+        &plumb::progress::Quiet,
+    );
+    let f = p.diameter.unwrap().diameter;
+    match f.method {
+        plumb::figure::Method::Bounds { .. } => {
+            let iv = f.interval.unwrap();
+            assert!(iv.low <= truth && truth <= iv.high && iv.level == 1.0);
+            assert!(iv.low < iv.high);
+        }
+        _ => assert_eq!(f.value, truth),
+    }
+}

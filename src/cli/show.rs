@@ -3,6 +3,7 @@
 use std::fmt::Write as _;
 
 use plumb::Graph;
+use plumb::figure::Method;
 use plumb::input::source::Compression;
 use plumb::intake::{IdKind, InputFormat};
 use plumb::profile::{Distances, Profile};
@@ -244,7 +245,7 @@ pub fn profile_text(g: &Graph, p: &Profile, per_node: Option<&std::path::Path>) 
         format!(
             "{} · wedges {} · transitivity {}",
             count(k.triangles.value as u64),
-            k.wedges,
+            u64::try_from(k.wedges).map_or(k.wedges.to_string(), count),
             fixed(k.transitivity.value, 6)
         ),
     );
@@ -270,16 +271,27 @@ pub fn profile_text(g: &Graph, p: &Profile, per_node: Option<&std::path::Path>) 
         &format!("distances on the {}", p.distance_node_set),
     );
     if let Some(dm) = &p.diameter {
-        row(
-            &mut out,
-            "diameter",
-            format!(
+        let f = &dm.diameter;
+        let text = match (&f.method, &f.interval) {
+            (Method::Bounds { .. }, Some(iv)) => format!(
+                "between {} and {} for certain (double-sweep bound, then iFUB stopped at the \
+                 --exact-budget after {} BFS runs)",
+                iv.low,
+                iv.high,
+                count(dm.bfs_runs)
+            ),
+            (Method::Exact { algorithm }, _) if algorithm.contains("iFUB") => format!(
                 "{} (exact: double-sweep bound {}, then iFUB; {} BFS runs)",
-                dm.diameter.value,
+                f.value,
                 dm.double_sweep_bound,
                 count(dm.bfs_runs)
             ),
-        );
+            _ => format!(
+                "{} (exact, from all-pairs distances; the double-sweep bound was {})",
+                f.value, dm.double_sweep_bound
+            ),
+        };
+        row(&mut out, "diameter", text);
     }
     match &p.distances {
         Distances::Exact(s) => {
