@@ -149,27 +149,13 @@ pub fn induced(g: &Csr, nodes: &[u32]) -> Csr {
     for (i, &v) in nodes.iter().enumerate() {
         index[v as usize] = i as u32;
     }
-    let lists: Vec<Vec<u32>> = nodes
-        .par_iter()
-        .map(|&v| {
-            g.neighbors(v)
-                .iter()
-                .filter_map(|&w| {
-                    let i = index[w as usize];
-                    (i != u32::MAX).then_some(i)
-                })
-                .collect()
-        })
-        .collect();
-    let mut offsets = Vec::with_capacity(nodes.len() + 1);
-    offsets.push(0u64);
-    let mut targets = Vec::with_capacity(lists.iter().map(Vec::len).sum());
-    for l in lists {
-        // Ascending already: renumbering preserves order.
-        targets.extend_from_slice(&l);
-        offsets.push(targets.len() as u64);
-    }
-    Csr::from_parts(offsets.into(), targets.into())
+    // Renumbering keeps each list ascending.
+    Csr::from_lists(nodes.len(), |i, out| {
+        out.extend(g.neighbors(nodes[i as usize]).iter().filter_map(|&w| {
+            let j = index[w as usize];
+            (j != u32::MAX).then_some(j)
+        }));
+    })
 }
 
 #[cfg(test)]

@@ -71,6 +71,42 @@ impl Csr {
         (o[u as usize + 1] - o[u as usize]) as u32
     }
 
+    /// Build a CSR whose list for node `u` (of `n`) is produced by `list(u, &mut out)` appending
+    /// to `out`. Nodes are processed in parallel blocks, one allocation per block, not per node.
+    pub fn from_lists(n: usize, list: impl Fn(u32, &mut Vec<u32>) + Sync) -> Self {
+        use rayon::prelude::*;
+        const BLOCK: usize = 4096;
+        let blocks: Vec<(Vec<u64>, Vec<u32>)> = (0..n.div_ceil(BLOCK))
+            .into_par_iter()
+            .map(|b| {
+                let mut lens = Vec::with_capacity(BLOCK);
+                let mut out = Vec::new();
+                for u in b * BLOCK..((b + 1) * BLOCK).min(n) {
+                    let before = out.len();
+                    list(u as u32, &mut out);
+                    lens.push((out.len() - before) as u64);
+                }
+                (lens, out)
+            })
+            .collect();
+        let total: usize = blocks.iter().map(|b| b.1.len()).sum();
+        let mut offsets = Vec::with_capacity(n + 1);
+        let mut targets = Vec::with_capacity(total);
+        offsets.push(0u64);
+        let mut acc = 0u64;
+        for (lens, out) in blocks {
+            for l in lens {
+                acc += l;
+                offsets.push(acc);
+            }
+            targets.extend_from_slice(&out);
+        }
+        Csr {
+            offsets: offsets.into(),
+            targets: targets.into(),
+        }
+    }
+
     pub fn is_mapped(&self) -> bool {
         self.targets.is_mapped()
     }

@@ -59,28 +59,28 @@ pub fn sweep(g: &Csr) -> Sweep {
     let start = (0..n as u32)
         .max_by_key(|&v| (g.degree(v), std::cmp::Reverse(v)))
         .unwrap_or(0);
-    b.run(g, start);
+    b.run_parallel(g, start);
     known.push((start, b.eccentricity()));
-    let a = farthest(&b.dist);
-    b.run(g, a);
+    let a = farthest(b.dist());
+    b.run_parallel(g, a);
     let lower = b.eccentricity();
     known.push((a, lower));
     // The middle of the a–far shortest path: walk back from `far` to distance ceil(lower / 2).
-    let mut mid = farthest(&b.dist);
-    while b.dist[mid as usize] > lower.div_ceil(2) {
-        let d = b.dist[mid as usize];
+    let mut mid = farthest(b.dist());
+    while b.dist()[mid as usize] > lower.div_ceil(2) {
+        let d = b.dist()[mid as usize];
         mid = *g
             .neighbors(mid)
             .iter()
-            .find(|&&w| b.dist[w as usize] == d - 1)
+            .find(|&&w| b.dist()[w as usize] == d - 1)
             .expect("a BFS parent exists");
     }
-    b.run(g, mid);
+    b.run_parallel(g, mid);
     let center_ecc = b.eccentricity();
     known.push((mid, center_ecc));
     let mut levels = vec![Vec::new(); center_ecc as usize + 1];
     for v in 0..n as u32 {
-        levels[b.dist[v as usize] as usize].push(v);
+        levels[b.dist()[v as usize] as usize].push(v);
     }
     Sweep {
         lower: lower.max(center_ecc),

@@ -1,7 +1,8 @@
 //! Exact triangle counting, in total and per node, by the forward (compact-forward) algorithm:
 //! orient every edge from lower to higher (degree, index) rank, so every node keeps at most
-//! sqrt(2m) out-neighbours, then count |N+(u) ∩ N+(v)| over oriented edges by merging sorted
-//! lists. Each triangle is found exactly once. Schank & Wagner, "Finding, counting and listing
+//! sqrt(2m) out-neighbours, then count |N+(u) ∩ N+(v)| over oriented edges. Each triangle is
+//! found exactly once. The intersection marks N+(u) in a per-thread stamp array and tests N+(v)
+//! against it without branching, which measured faster than merging sorted lists here. Schank & Wagner, "Finding, counting and listing
 //! all triangles in large graphs, an experimental study", WEA 2005; Latapy, "Main-memory triangle
 //! computations for very large (sparse (power-law)) graphs", Theor. Comput. Sci. 407 (2008).
 
@@ -20,75 +21,55 @@ pub struct Triangles {
 }
 
 /// Orientation: keep edge u -> v when (deg u, u) < (deg v, v).
-fn oriented(g: &Csr) -> (Vec<u64>, Vec<u32>) {
-    let n = g.node_count();
+fn oriented(g: &Csr) -> Csr {
     let deg = |u: u32| g.degree(u);
-    let higher = |u: u32, v: u32| (deg(u), u) < (deg(v), v);
-    let lists: Vec<Vec<u32>> = (0..n as u32)
-        .into_par_iter()
-        .map(|u| {
+    Csr::from_lists(g.node_count(), |u, out| {
+        let du = deg(u);
+        out.extend(
             g.neighbors(u)
                 .iter()
                 .copied()
-                .filter(|&v| higher(u, v))
-                .collect()
-        })
-        .collect();
-    let mut offsets = Vec::with_capacity(n + 1);
-    offsets.push(0u64);
-    let mut targets = Vec::with_capacity(g.edge_count() as usize);
-    for l in lists {
-        targets.extend_from_slice(&l);
-        offsets.push(targets.len() as u64);
-    }
-    (offsets, targets)
+                .filter(|&v| (du, u) < (deg(v), v)),
+        );
+    })
 }
 
-/// Count common elements of two ascending lists, calling `hit` for each.
-#[inline]
-fn intersect(a: &[u32], b: &[u32], mut hit: impl FnMut(u32)) -> u64 {
-    let (mut i, mut j, mut c) = (0, 0, 0);
-    while i < a.len() && j < b.len() {
-        match a[i].cmp(&b[j]) {
-            std::cmp::Ordering::Less => i += 1,
-            std::cmp::Ordering::Greater => j += 1,
-            std::cmp::Ordering::Equal => {
-                hit(a[i]);
-                c += 1;
-                i += 1;
-                j += 1;
-            }
-        }
-    }
-    c
-}
-
-/// Exact triangle counts. Integer counts, so identical on any thread count.
+/// Exact triangle counts. Integer counts, so identical on any thread count. Same stamp scheme
+/// as [`total`]; each triangle (u, v, w) found at u credits u, v and w.
 pub fn count(g: &Csr) -> Triangles {
     let n = g.node_count();
-    let (off, tgt) = oriented(g);
-    let out = |u: u32| &tgt[off[u as usize] as usize..off[u as usize + 1] as usize];
+    let dag = oriented(g);
     let per: Vec<AtomicU64> = (0..n).map(|_| AtomicU64::new(0)).collect();
     let total: u64 = (0..n as u32)
         .into_par_iter()
-        .with_min_len(256)
-        .map(|u| {
-            let nu = out(u);
-            let mut at_u = 0u64;
-            for &v in nu {
-                let found = intersect(nu, out(v), |w| {
-                    per[w as usize].fetch_add(1, Relaxed);
-                });
-                if found > 0 {
-                    per[v as usize].fetch_add(found, Relaxed);
-                    at_u += found;
+        .with_min_len(1024)
+        .map_init(
+            || vec![u32::MAX; n],
+            |stamp, u| {
+                let nu = dag.neighbors(u);
+                for &w in nu {
+                    stamp[w as usize] = u;
                 }
-            }
-            if at_u > 0 {
-                per[u as usize].fetch_add(at_u, Relaxed);
-            }
-            at_u
-        })
+                let mut at_u = 0u64;
+                for &v in nu {
+                    let mut at_v = 0u64;
+                    for &w in dag.neighbors(v) {
+                        if stamp[w as usize] == u {
+                            per[w as usize].fetch_add(1, Relaxed);
+                            at_v += 1;
+                        }
+                    }
+                    if at_v > 0 {
+                        per[v as usize].fetch_add(at_v, Relaxed);
+                        at_u += at_v;
+                    }
+                }
+                if at_u > 0 {
+                    per[u as usize].fetch_add(at_u, Relaxed);
+                }
+                at_u
+            },
+        )
         .sum();
     Triangles {
         total,
@@ -96,19 +77,30 @@ pub fn count(g: &Csr) -> Triangles {
     }
 }
 
-/// Count only the total (no per-node array): the fastest path for transitivity.
+/// Count only the total (no per-node array): the fastest path for transitivity. Marks N+(u) in
+/// a per-thread stamp array, then tests every w in N+(v), v in N+(u), without branching.
 pub fn total(g: &Csr) -> u64 {
-    let (off, tgt) = oriented(g);
-    let out = |u: u32| &tgt[off[u as usize] as usize..off[u as usize + 1] as usize];
-    (0..g.node_count() as u32)
+    let n = g.node_count();
+    let dag = oriented(g);
+    (0..n as u32)
         .into_par_iter()
-        .with_min_len(256)
-        .map(|u| {
-            let nu = out(u);
-            nu.iter()
-                .map(|&v| intersect(nu, out(v), |_| {}))
-                .sum::<u64>()
-        })
+        .with_min_len(1024)
+        .map_init(
+            || vec![u32::MAX; n],
+            |stamp, u| {
+                let nu = dag.neighbors(u);
+                for &w in nu {
+                    stamp[w as usize] = u;
+                }
+                let mut c = 0u64;
+                for &v in nu {
+                    for &w in dag.neighbors(v) {
+                        c += (stamp[w as usize] == u) as u64;
+                    }
+                }
+                c
+            },
+        )
         .sum()
 }
 

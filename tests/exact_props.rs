@@ -29,7 +29,7 @@ proptest! {
         let mut b = Bfs::new(g.node_count());
         b.run(&g, s);
         let want = naive_distances(&g, s);
-        prop_assert_eq!(&b.dist, &want);
+        prop_assert_eq!(b.dist(), &want[..]);
         prop_assert_eq!(b.reached(), want.iter().filter(|&&d| d != UNREACHED).count() as u64);
     }
 
