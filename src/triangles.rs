@@ -34,74 +34,68 @@ fn oriented(g: &Csr) -> Csr {
     })
 }
 
-/// Exact triangle counts. Integer counts, so identical on any thread count. Same stamp scheme
-/// as [`total`]; each triangle (u, v, w) found at u credits u, v and w.
-pub fn count(g: &Csr) -> Triangles {
-    let n = g.node_count();
-    let dag = oriented(g);
-    let per: Vec<AtomicU64> = (0..n).map(|_| AtomicU64::new(0)).collect();
-    let total: u64 = (0..n as u32)
-        .into_par_iter()
-        .with_min_len(1024)
-        .map_init(
-            || vec![u32::MAX; n],
-            |stamp, u| {
-                let nu = dag.neighbors(u);
-                for &w in nu {
-                    stamp[w as usize] = u;
-                }
-                let mut at_u = 0u64;
-                for &v in nu {
-                    let mut at_v = 0u64;
-                    for &w in dag.neighbors(v) {
-                        if stamp[w as usize] == u {
-                            per[w as usize].fetch_add(1, Relaxed);
-                            at_v += 1;
-                        }
-                    }
-                    if at_v > 0 {
-                        per[v as usize].fetch_add(at_v, Relaxed);
-                        at_u += at_v;
-                    }
-                }
-                if at_u > 0 {
-                    per[u as usize].fetch_add(at_u, Relaxed);
-                }
-                at_u
-            },
-        )
-        .sum();
-    Triangles {
-        total,
-        per_node: per.into_iter().map(AtomicU64::into_inner).collect(),
-    }
-}
-
-/// Count only the total (no per-node array): the fastest path for transitivity. Marks N+(u) in
-/// a per-thread stamp array, then tests every w in N+(v), v in N+(u), without branching.
-pub fn total(g: &Csr) -> u64 {
-    let n = g.node_count();
-    let dag = oriented(g);
+/// Run `visit(stamp, u)` for every node u, in parallel, with N+(u) marked in a per-thread stamp
+/// array (`stamp[w] == u` exactly when w is in N+(u)), and add up what the visits return.
+fn over_stamped(dag: &Csr, visit: impl Fn(&[u32], u32) -> u64 + Sync) -> u64 {
+    let n = dag.node_count();
     (0..n as u32)
         .into_par_iter()
         .with_min_len(1024)
         .map_init(
             || vec![u32::MAX; n],
             |stamp, u| {
-                let nu = dag.neighbors(u);
-                for &w in nu {
+                for &w in dag.neighbors(u) {
                     stamp[w as usize] = u;
                 }
-                let mut c = 0u64;
-                for &v in nu {
-                    for &w in dag.neighbors(v) {
-                        c += (stamp[w as usize] == u) as u64;
-                    }
-                }
-                c
+                visit(stamp, u)
             },
         )
         .sum()
+}
+
+/// Exact triangle counts. Integer counts, so identical on any thread count. Each triangle
+/// (u, v, w) is found once, at u, and credited to u, v and w.
+pub fn count(g: &Csr) -> Triangles {
+    let dag = oriented(g);
+    let per: Vec<AtomicU64> = (0..g.node_count()).map(|_| AtomicU64::new(0)).collect();
+    let total = over_stamped(&dag, |stamp, u| {
+        let mut at_u = 0u64;
+        for &v in dag.neighbors(u) {
+            let mut at_v = 0u64;
+            for &w in dag.neighbors(v) {
+                if stamp[w as usize] == u {
+                    per[w as usize].fetch_add(1, Relaxed);
+                    at_v += 1;
+                }
+            }
+            if at_v > 0 {
+                per[v as usize].fetch_add(at_v, Relaxed);
+                at_u += at_v;
+            }
+        }
+        if at_u > 0 {
+            per[u as usize].fetch_add(at_u, Relaxed);
+        }
+        at_u
+    });
+    Triangles {
+        total,
+        per_node: per.into_iter().map(AtomicU64::into_inner).collect(),
+    }
+}
+
+/// Count only the total: the fastest path for transitivity (the test needs no branch).
+pub fn total(g: &Csr) -> u64 {
+    let dag = oriented(g);
+    over_stamped(&dag, |stamp, u| {
+        let mut c = 0u64;
+        for &v in dag.neighbors(u) {
+            for &w in dag.neighbors(v) {
+                c += (stamp[w as usize] == u) as u64;
+            }
+        }
+        c
+    })
 }
 
 /// The obvious O(sum d^2) count over neighbour pairs, for testing the fast path.

@@ -118,92 +118,85 @@ pub fn scan_chunk<'a>(
     }
     let mut line_no = 0u64;
     while pos < len {
+        let start = pos;
+        line_no += 1;
         // The common shape ("123 456\n") skips the general parser and the newline search.
-        if let Some((a, b, next)) = edgeline::quick_pair(bytes, pos)
-            && next - pos <= rules.max_line
-            && rules.header_at != Some(byte_base + pos as u64)
-            && rules.mtx.is_none_or(|m| mtx_entry(a, b, false, m).is_ok())
-        {
-            line_no += 1;
+        let quick = edgeline::quick_pair(bytes, pos).filter(|&(a, b, next)| {
+            next - pos <= rules.max_line
+                && rules.header_at != Some(byte_base + pos as u64)
+                && rules.mtx.is_none_or(|m| mtx_entry(a, b, false, m).is_ok())
+        });
+        let (verdict, line) = if let Some((a, b, next)) = quick {
             pos = next;
-            c.edge_lines += 1;
-            c.loops += a.same(&b, rules.text_ids) as u64;
-            if on_edge(a, b) {
+            (Ok((a, b)), &bytes[start..next])
+        } else {
+            let end = memchr::memchr(b'\n', &bytes[pos..]).map_or(len, |i| pos + i);
+            let line = &bytes[pos..end];
+            pos = end + 1;
+            if line.len() > rules.max_line {
+                out.error = Some(LocalFault {
+                    line: line_no - 1,
+                    offset: start,
+                    error: LineError::TooLong,
+                    excerpt: excerpt(line),
+                });
+                break;
+            }
+            if rules.header_at == Some(byte_base + start as u64) {
+                out.header_skipped = true;
                 continue;
             }
-            out.stopped = true;
-            break;
-        }
-        let end = memchr::memchr(b'\n', &bytes[pos..]).map_or(len, |i| pos + i);
-        let line = &bytes[pos..end];
-        let start = pos;
-        pos = end + 1;
-        line_no += 1;
-        if line.len() > rules.max_line {
-            out.error = Some(LocalFault {
-                line: line_no - 1,
-                offset: start,
-                error: LineError::TooLong,
-                excerpt: excerpt(line),
-            });
-            break;
-        }
-        if rules.header_at == Some(byte_base + start as u64) {
-            out.header_skipped = true;
-            continue;
-        }
-        let fault = match edgeline::parse_line(line) {
-            Ok(Line::Edge { a, b, extra }) => match rules.mtx {
-                None => {
-                    c.edge_lines += 1;
-                    c.extra += extra as u64;
-                    c.loops += a.same(&b, rules.text_ids) as u64;
-                    if on_edge(a, b) {
-                        continue;
+            let verdict = match edgeline::parse_line(line) {
+                Ok(Line::Edge { a, b, extra }) => match rules.mtx {
+                    None => {
+                        c.extra += extra as u64;
+                        Ok((a, b))
                     }
+                    Some(m) => mtx_entry(a, b, extra, m)
+                        .map(|()| (a, b))
+                        .map_err(LineError::Mtx),
+                },
+                Ok(Line::Blank) => {
+                    c.blank += 1;
+                    continue;
+                }
+                Ok(Line::Comment) => {
+                    c.comments += 1;
+                    continue;
+                }
+                Err(f) => Err(LineError::Malformed {
+                    problem: f.problem().to_string(),
+                    expected: edgeline::EXPECTED_EDGE,
+                }),
+            };
+            (verdict, line)
+        };
+        match verdict {
+            Ok((a, b)) => {
+                c.edge_lines += 1;
+                c.loops += a.same(&b, rules.text_ids) as u64;
+                if !on_edge(a, b) {
                     out.stopped = true;
                     break;
                 }
-                Some(m) => match mtx_entry(a, b, extra, m) {
-                    Ok(()) => {
-                        c.edge_lines += 1;
-                        c.loops += a.same(&b, rules.text_ids) as u64;
-                        if on_edge(a, b) {
-                            continue;
-                        }
-                        out.stopped = true;
-                        break;
+            }
+            Err(error) => {
+                let fault = LocalFault {
+                    line: line_no - 1,
+                    offset: start,
+                    error,
+                    excerpt: excerpt(line),
+                };
+                if rules.skip_malformed {
+                    c.malformed += 1;
+                    if out.skipped.len() < EXAMPLES {
+                        out.skipped.push(fault);
                     }
-                    Err(problem) => LineError::Mtx(problem),
-                },
-            },
-            Ok(Line::Blank) => {
-                c.blank += 1;
-                continue;
+                } else {
+                    out.error = Some(fault);
+                    break;
+                }
             }
-            Ok(Line::Comment) => {
-                c.comments += 1;
-                continue;
-            }
-            Err(f) => LineError::Malformed {
-                problem: f.problem().to_string(),
-                expected: edgeline::EXPECTED_EDGE,
-            },
-        };
-        let fault = LocalFault {
-            line: line_no - 1,
-            offset: start,
-            error: fault,
-            excerpt: excerpt(line),
-        };
-        if rules.skip_malformed {
-            c.malformed += 1;
-            if out.skipped.len() < EXAMPLES {
-                out.skipped.push(fault);
-            }
-        } else {
-            out.error = Some(fault);
-            break;
         }
     }
     out.counts.lines = line_no;
