@@ -7,6 +7,7 @@ set -euo pipefail
 cd "$(dirname "$0")/.."
 target=$1
 secs=${2:-60}
+max_len=${3:-4096}
 mkdir -p "fuzz/corpus/$target"
 RUSTC_BOOTSTRAP=1 cargo fuzz run -O "$target" "fuzz/corpus/$target" "fuzz/seeds/$target" -- \
-    -max_total_time="$secs" -max_len=4096 -rss_limit_mb=2048 -timeout=10 -print_final_stats=1
+    -max_total_time="$secs" -max_len="$max_len" -rss_limit_mb=2048 -timeout=10 -print_final_stats=1

@@ -103,3 +103,49 @@ fn exit_codes() {
     assert_eq!(skipped.status.code(), Some(0));
     assert!(String::from_utf8_lossy(&skipped.stdout).contains("skipped line 2"));
 }
+
+#[test]
+fn profile_with_a_per_node_table() {
+    let dir = tempfile::tempdir().unwrap();
+    let table = dir.path().join("karate.tsv.zst");
+    let out = plumb(&[
+        "profile",
+        "tests/data/karate.mtx",
+        "--per-node",
+        table.to_str().unwrap(),
+    ]);
+    assert!(
+        out.status.success(),
+        "{}",
+        String::from_utf8_lossy(&out.stderr)
+    );
+    let text = String::from_utf8(out.stdout).unwrap();
+    assert!(text.contains("transitivity 0.255682"), "{text}");
+    assert!(text.contains("mean       2.408200"), "{text}");
+    let tsv =
+        String::from_utf8(zstd::decode_all(&std::fs::read(&table).unwrap()[..]).unwrap()).unwrap();
+    let rows: Vec<Vec<&str>> = tsv.lines().map(|l| l.split('\t').collect()).collect();
+    assert_eq!(
+        rows[0],
+        [
+            "id",
+            "degree",
+            "triangles",
+            "clustering",
+            "component",
+            "eccentricity"
+        ]
+    );
+    assert_eq!(rows.len(), 35);
+    // Member 1 of Zachary's club (NetworkX node 0): degree 16, 18 triangles, clustering 0.15,
+    // eccentricity 3 (NetworkX 3.6.1).
+    assert_eq!(rows[1], ["1", "16", "18", "0.150000", "1", "3"]);
+    // Member 34: degree 17, clustering 0.110294 (NetworkX 3.6.1: 0.11029411764705882).
+    assert_eq!(&rows[34][..4], ["34", "17", "15", "0.110294"]);
+    // JSON carries every figure with its method.
+    let out = plumb(&["profile", "--json", "tests/data/karate.mtx"]);
+    let v: serde_json::Value = serde_json::from_slice(&out.stdout).unwrap();
+    let t = &v["profile"]["clustering"]["transitivity"];
+    assert_eq!(t["method"]["kind"], "exact");
+    assert!((t["value"].as_f64().unwrap() - 0.2556818).abs() < 1e-6);
+}

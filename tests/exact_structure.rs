@@ -294,3 +294,22 @@ fn diameter_under_a_small_budget_is_bounded_never_guessed() {
         _ => assert_eq!(f.value, truth),
     }
 }
+
+#[test]
+fn les_miserables_both_clustering_conventions() {
+    // Knuth (1993), The Stanford GraphBase, co-appearances as shipped by NetworkX 3.6.1:
+    // average clustering 0.573137 with degree < 2 counted as 0 (NetworkX average_clustering),
+    // 0.735525 over the 60 nodes of degree >= 2 (computed with NetworkX's per-node clustering).
+    // NetworkX's count_zeros=False gives yet another value (0.774237, zero-clustering nodes left
+    // out), which is why plumb names its two conventions by degree.
+    let g = plumb::ingest::load(
+        &data("lesmis.csv"),
+        &LoadOptions::default(),
+        &plumb::progress::Quiet,
+    )
+    .unwrap();
+    let p = prof(&g);
+    assert!(close(p.clustering.average_zeros.value, 0.573137, 5e-7));
+    assert!(close(p.clustering.average_deg2.value, 0.735525, 5e-7));
+    assert_eq!(p.clustering.average_deg2.sample_size, Some(60));
+}
