@@ -8,7 +8,6 @@ use plumb::Graph;
 use plumb::csr::Csr;
 use plumb::generate;
 use plumb::graph::NodeIds;
-use plumb::ingest::LoadOptions;
 use plumb::intake::Intake;
 use plumb::profile::{Distances, Profile, ProfileOptions, profile};
 
@@ -43,12 +42,7 @@ fn karate_club_published_figures() {
     // project's issue states for this graph, and NetworkX 3.6.1 gives the same (checked when the
     // fixture was made): 45 triangles, transitivity 0.255682, average clustering 0.570638 (degree
     // < 2 as 0), mean distance 2.408200, diameter 5, pairs at distance 1..5 = 78, 265, 137, 73, 8.
-    let g = plumb::ingest::load(
-        &data("karate.mtx"),
-        &LoadOptions::default(),
-        &plumb::progress::Quiet,
-    )
-    .unwrap();
+    let g = load_fixture("karate.mtx");
     let p = prof(&g);
     assert_eq!(p.clustering.triangles.value, 45.0);
     assert!(close(p.clustering.transitivity.value, 0.255682, 5e-7));
@@ -140,12 +134,7 @@ fn networkx_reference_values() {
             &std::fs::read_to_string(data(&format!("reference/{name}.json"))).unwrap(),
         )
         .unwrap();
-        let g = plumb::ingest::load(
-            &data(&format!("reference/{name}.tsv.zst")),
-            &LoadOptions::default(),
-            &plumb::progress::Quiet,
-        )
-        .unwrap();
+        let g = load_fixture(&format!("reference/{name}.tsv.zst"));
         let (p, table) = profile(&g, &ProfileOptions::default(), &plumb::progress::Quiet);
         let f = |k: &str| r[k].as_f64().unwrap();
         let u = |k: &str| r[k].as_u64().unwrap();
@@ -302,12 +291,7 @@ fn les_miserables_both_clustering_conventions() {
     // 0.735525 over the 60 nodes of degree >= 2 (computed with NetworkX's per-node clustering).
     // NetworkX's count_zeros=False gives yet another value (0.774237, zero-clustering nodes left
     // out), which is why plumb names its two conventions by degree.
-    let g = plumb::ingest::load(
-        &data("lesmis.csv"),
-        &LoadOptions::default(),
-        &plumb::progress::Quiet,
-    )
-    .unwrap();
+    let g = load_fixture("lesmis.csv");
     let p = prof(&g);
     assert!(close(p.clustering.average_zeros.value, 0.573137, 5e-7));
     assert!(close(p.clustering.average_deg2.value, 0.735525, 5e-7));

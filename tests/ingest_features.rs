@@ -13,12 +13,7 @@ fn karate_club_matrix_market_matches_published_degrees() {
     // Zachary (1977), J. Anthropol. Res. 33:452, 78-edge version as shipped by NetworkX 3.6.1
     // (fixture made by tests/data/make_fixtures.py): 34 members, 78 ties, and the degree of
     // every member as NetworkX reports it.
-    let g = plumb::ingest::load(
-        &data("karate.mtx"),
-        &LoadOptions::default(),
-        &plumb::progress::Quiet,
-    )
-    .unwrap();
+    let g = load_fixture("karate.mtx");
     assert_eq!(g.intake.format, InputFormat::MatrixMarket);
     assert_eq!((g.node_count(), g.edge_count()), (34, 78));
     assert!(matches!(g.ids, NodeIds::Range { first: 1, len: 34 }));
@@ -32,12 +27,7 @@ fn karate_club_matrix_market_matches_published_degrees() {
 fn les_miserables_text_ids_header_and_weights() {
     // Knuth (1993), The Stanford GraphBase: 77 characters, 254 co-appearance pairs, via
     // NetworkX 3.6.1. CSV with a header line and a weight column.
-    let g = plumb::ingest::load(
-        &data("lesmis.csv"),
-        &LoadOptions::default(),
-        &plumb::progress::Quiet,
-    )
-    .unwrap();
+    let g = load_fixture("lesmis.csv");
     assert_eq!(g.intake.id_kind, IdKind::Text);
     assert_eq!(
         g.intake.header_line.as_deref(),

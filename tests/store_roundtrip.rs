@@ -50,19 +50,9 @@ fn contiguous_ids_need_no_table() {
 
 #[test]
 fn text_ids_and_matrix_market() {
-    let g = plumb::ingest::load(
-        &data("lesmis.csv"),
-        &LoadOptions::default(),
-        &plumb::progress::Quiet,
-    )
-    .unwrap();
+    let g = load_fixture("lesmis.csv");
     same(&g, &roundtrip(&g));
-    let g = plumb::ingest::load(
-        &data("karate.mtx"),
-        &LoadOptions::default(),
-        &plumb::progress::Quiet,
-    )
-    .unwrap();
+    let g = load_fixture("karate.mtx");
     same(&g, &roundtrip(&g));
 }
 

@@ -72,3 +72,8 @@ pub fn zstd_frames(bytes: &[u8], frame: usize) -> Vec<u8> {
         .flat_map(|c| zstd::encode_all(c, 1).unwrap())
         .collect()
 }
+
+/// Load a file from tests/data with the default options.
+pub fn load_fixture(name: &str) -> Graph {
+    ingest::load(&data(name), &LoadOptions::default(), &Quiet).expect("fixture loads")
+}
