@@ -13,6 +13,7 @@ pub mod demo;
 pub mod diameter;
 pub mod distances;
 pub mod error;
+pub mod estimate;
 pub mod figure;
 pub mod generate;
 pub mod graph;

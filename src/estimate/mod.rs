@@ -1,0 +1,5 @@
+//! Estimators with honest confidence intervals, for figures too costly to compute exactly.
+//! Every estimator takes a seed and gives the same result on any thread count.
+
+pub mod interval;
+pub mod wedges;
