@@ -82,3 +82,37 @@ fn karate_club_estimate_converges_to_the_exact_value() {
     assert!((e.transitivity.value - 0.255682).abs() < 0.002);
     assert!((e.triangles.value - 45.0).abs() < 0.5);
 }
+
+fn covers(f: &plumb::figure::Figure, exact: f64) -> bool {
+    let iv = f.interval.expect("an estimate carries an interval");
+    iv.low <= exact && exact <= iv.high
+}
+
+#[test]
+fn sampled_bfs_mean_distance_intervals_cover_at_the_nominal_rate() {
+    for (name, g) in graphs() {
+        let c = plumb::components::components(&g);
+        let sub = plumb::components::induced(&g, &c.giant_nodes());
+        let ap = plumb::distances::all_pairs(&sub);
+        let pairs: u64 = ap.pairs.iter().sum();
+        let exact = ap
+            .pairs
+            .iter()
+            .enumerate()
+            .map(|(d, &c)| d as f64 * c as f64)
+            .sum::<f64>()
+            / pairs as f64;
+        let runs = 1000;
+        let covered = (0..runs)
+            .filter(|&seed| {
+                covers(
+                    &plumb::estimate::distance::estimate(&sub, 40, 0.95, seed).mean,
+                    exact,
+                )
+            })
+            .count();
+        let rate = covered as f64 / runs as f64;
+        println!("{name}: mean distance {exact:.6}, 95% interval covered {rate:.3}");
+        assert!((0.92..=0.985).contains(&rate), "{name}: coverage {rate}");
+    }
+}
