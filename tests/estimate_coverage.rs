@@ -116,3 +116,27 @@ fn sampled_bfs_mean_distance_intervals_cover_at_the_nominal_rate() {
         assert!((0.92..=0.985).contains(&rate), "{name}: coverage {rate}");
     }
 }
+
+#[test]
+fn node_wedge_clustering_intervals_cover_at_the_nominal_rate() {
+    for (name, g) in graphs() {
+        let t = plumb::triangles::count(&g);
+        let s = plumb::clustering::stats(&g, &t);
+        let (z, d2) = (s.average_zeros.value, s.average_deg2.value);
+        let runs = 1000;
+        let (mut cz, mut cd) = (0, 0);
+        for seed in 0..runs {
+            let e = wedges::average_clustering(&g, 2000, 0.95, seed);
+            cz += covers(&e.average_zeros, z) as u32;
+            cd += covers(&e.average_deg2, d2) as u32;
+        }
+        let (rz, rd) = (cz as f64 / runs as f64, cd as f64 / runs as f64);
+        println!(
+            "{name}: average clustering {z:.6} covered {rz:.3}; degree>=2 {d2:.6} covered {rd:.3}"
+        );
+        assert!(
+            (0.92..=0.985).contains(&rz) && (0.92..=0.985).contains(&rd),
+            "{name}"
+        );
+    }
+}
