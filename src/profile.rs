@@ -20,12 +20,21 @@ use crate::triangles;
 pub struct ProfileOptions {
     /// Most work units (64-bit word operations of the all-pairs search) exact distances may cost.
     pub exact_budget: f64,
+    /// BFS sources for the mean-distance estimate when exact distances are over budget.
+    pub sources: usize,
+    /// Confidence level of every interval.
+    pub level: f64,
+    /// Seed of every random choice.
+    pub seed: u64,
 }
 
 impl Default for ProfileOptions {
     fn default() -> Self {
         ProfileOptions {
             exact_budget: DEFAULT_EXACT_BUDGET,
+            sources: 256,
+            level: 0.95,
+            seed: 1,
         }
     }
 }
@@ -49,10 +58,12 @@ pub struct DiameterFigures {
 #[serde(tag = "status", rename_all = "kebab-case")]
 pub enum Distances {
     Exact(Box<DistanceStats>),
-    /// Not computed: the estimated cost exceeds the budget.
+    /// Exact all-pairs exceeds the budget: the mean distance is estimated from sampled sources.
     OverBudget {
         estimated_cost: f64,
         budget: f64,
+        /// The estimate (an interval always comes with it).
+        mean: Figure,
     },
     /// No pairs to measure (no edges).
     Empty,
@@ -182,9 +193,13 @@ pub fn profile(g: &Graph, opts: &ProfileOptions, progress: &dyn Progress) -> (Pr
             clock.done("all-pairs distances");
             Distances::Exact(Box::new(stats))
         } else {
+            clock.start("sampled distances");
+            let e = crate::estimate::distance::estimate(&sub, opts.sources, opts.level, opts.seed);
+            clock.done("sampled distances");
             Distances::OverBudget {
                 estimated_cost: cost,
                 budget: opts.exact_budget,
+                mean: e.mean,
             }
         };
         let figures = match (&dist, d) {

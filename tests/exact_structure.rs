@@ -252,9 +252,18 @@ fn disconnected_input_reports_the_giant_component_and_never_errors() {
 #[test]
 fn over_budget_distances_are_skipped_and_said() {
     let g = graph(generate::ring_lattice(2000, 10));
-    let opts = ProfileOptions { exact_budget: 1e6 };
+    let opts = ProfileOptions {
+        exact_budget: 1e6,
+        ..ProfileOptions::default()
+    };
     let (p, _) = profile(&g, &opts, &plumb::progress::Quiet);
-    assert!(matches!(p.distances, Distances::OverBudget { .. }));
+    // The mean distance is then estimated, with an interval, from sampled sources.
+    let Distances::OverBudget { mean, .. } = &p.distances else {
+        panic!("expected the over-budget path")
+    };
+    let iv = mean.interval.unwrap();
+    let exact = lattice_mean_distance(2000, 10);
+    assert!(iv.low < iv.high && (mean.value - exact).abs() < 0.1 * exact);
     // The diameter is still exact (a handful of BFS runs): ceil(1000 / 5).
     assert_eq!(p.diameter.unwrap().diameter.value, 200.0);
 }
@@ -270,7 +279,10 @@ fn diameter_under_a_small_budget_is_bounded_never_guessed() {
     };
     let (p, _) = profile(
         &g,
-        &ProfileOptions { exact_budget: 2e7 },
+        &ProfileOptions {
+            exact_budget: 2e7,
+            ..ProfileOptions::default()
+        },
         &plumb::progress::Quiet,
     );
     let f = p.diameter.unwrap().diameter;

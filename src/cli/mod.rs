@@ -53,6 +53,9 @@ enum Command {
         /// beyond it they are skipped and the report says so.
         #[arg(long, value_name = "OPS", default_value_t = plumb::profile::DEFAULT_EXACT_BUDGET)]
         exact_budget: f64,
+        /// Seed of every random choice (same seed and input, same output on any thread count).
+        #[arg(long, default_value_t = 1)]
+        seed: u64,
     },
     /// Read an edge file and show what was read: sizes, cleaning counts, degrees, timings.
     Intake {
@@ -175,9 +178,14 @@ pub fn run(args: Args) -> Result<ExitCode, Error> {
             json,
             per_node,
             exact_budget,
+            seed,
         } => {
             let g = ingest::load(&input.input, &input.options(), &bars)?;
-            let opts = plumb::profile::ProfileOptions { exact_budget };
+            let opts = plumb::profile::ProfileOptions {
+                exact_budget,
+                seed,
+                ..Default::default()
+            };
             let (p, table) = plumb::profile::profile(&g, &opts, &bars);
             if let Some(path) = &per_node {
                 plumb::pernode::write(&g, &table, path)?;

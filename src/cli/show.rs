@@ -341,14 +341,32 @@ pub fn profile_text(g: &Graph, p: &Profile, per_node: Option<&std::path::Path>) 
         Distances::OverBudget {
             estimated_cost,
             budget,
-        } => row(
-            &mut out,
-            "mean",
-            format!(
-                "not computed: exact all-pairs needs about {estimated_cost:.2e} operations, over \
-                 the budget of {budget:.2e} (--exact-budget)"
-            ),
-        ),
+            mean,
+        } => {
+            let iv = mean.interval.expect("an estimate carries an interval");
+            row(
+                &mut out,
+                "mean",
+                format!(
+                    "{} ± {:.4} ({:.0}% interval {:.4}–{:.4}; estimated from BFS at {} sampled \
+                     sources)",
+                    fixed(mean.value, 4),
+                    (iv.high - iv.low) / 2.0,
+                    100.0 * iv.level,
+                    iv.low,
+                    iv.high,
+                    count(mean.sample_size.unwrap_or(0))
+                ),
+            );
+            row(
+                &mut out,
+                "",
+                format!(
+                    "exact all-pairs would need about {estimated_cost:.2e} operations, over the \
+                     budget of {budget:.2e} (--exact-budget)"
+                ),
+            );
+        }
         Distances::Empty => row(&mut out, "mean", "no pairs: the graph has no edges"),
     }
     let parts: Vec<String> = p
