@@ -31,6 +31,42 @@ fn block_rng(seed: u64, b: u64) -> ChaCha8Rng {
     rng
 }
 
+/// Count the successes of `samples` Bernoulli draws, in blocks with streams of their own, so the
+/// count does not depend on the thread count.
+fn count_successes(samples: u64, seed: u64, draw: impl Fn(&mut ChaCha8Rng) -> bool + Sync) -> u64 {
+    (0..samples.div_ceil(BLOCK))
+        .into_par_iter()
+        .map(|b| {
+            let mut rng = block_rng(seed, b);
+            let take = BLOCK.min(samples - b * BLOCK);
+            (0..take).filter(|_| draw(&mut rng)).count() as u64
+        })
+        .sum()
+}
+
+/// A sampled proportion as a figure (Wilson interval), and the same figure scaled by `scale`.
+fn proportion(closed: u64, samples: u64, level: f64, name: &str, scale: f64) -> (Figure, Figure) {
+    let p = if samples == 0 {
+        0.0
+    } else {
+        closed as f64 / samples as f64
+    };
+    let se = (p * (1.0 - p) / samples.max(1) as f64).sqrt();
+    let iv = wilson(closed, samples, level);
+    let scaled = Figure::estimate(
+        p * scale,
+        name,
+        samples,
+        se * scale,
+        Interval {
+            low: iv.low * scale,
+            high: iv.high * scale,
+            level,
+        },
+    );
+    (Figure::estimate(p, name, samples, se, iv), scaled)
+}
+
 /// Estimate transitivity from `samples` wedges, with a Wilson interval at `level`.
 pub fn estimate(g: &Csr, samples: u64, level: f64, seed: u64) -> WedgeEstimate {
     let n = g.node_count();
@@ -44,47 +80,21 @@ pub fn estimate(g: &Csr, samples: u64, level: f64, seed: u64) -> WedgeEstimate {
         cum.push(acc);
     }
     let wedges = acc;
-    let closed: u64 = if wedges == 0 {
+    let closed = if wedges == 0 {
         0
     } else {
-        (0..samples.div_ceil(BLOCK))
-            .into_par_iter()
-            .map(|b| {
-                let mut rng = block_rng(seed, b);
-                let take = BLOCK.min(samples - b * BLOCK);
-                let mut c = 0u64;
-                for _ in 0..take {
-                    // A uniform wedge index picks the centre in proportion to its wedges.
-                    let x = random_below(&mut rng, wedges);
-                    let v = cum.partition_point(|&w| w <= x);
-                    c += closes(g, v as u32, &mut rng) as u64;
-                }
-                c
-            })
-            .sum()
+        count_successes(samples, seed, |rng| {
+            // A uniform wedge index picks the centre in proportion to its wedges.
+            let x = random_below(rng, wedges);
+            let v = cum.partition_point(|&w| w <= x);
+            closes(g, v as u32, rng)
+        })
     };
-    let p = if samples == 0 {
-        0.0
-    } else {
-        closed as f64 / samples as f64
-    };
-    let se = (p * (1.0 - p) / samples.max(1) as f64).sqrt();
-    let iv = wilson(closed, samples, level);
     const NAME: &str = "wedge sampling (Seshadhri, Pinar & Kolda 2013), Wilson interval";
-    let scale = wedges as f64 / 3.0;
+    let (transitivity, triangles) = proportion(closed, samples, level, NAME, wedges as f64 / 3.0);
     WedgeEstimate {
-        transitivity: Figure::estimate(p, NAME, samples, se, iv),
-        triangles: Figure::estimate(
-            p * scale,
-            NAME,
-            samples,
-            se * scale,
-            Interval {
-                low: iv.low * scale,
-                high: iv.high * scale,
-                level,
-            },
-        ),
+        transitivity,
+        triangles,
         samples,
         closed,
     }
@@ -113,49 +123,24 @@ pub fn average_clustering(
         "uniform node then uniform wedge (Seshadhri, Pinar & Kolda 2014), Wilson interval";
     let n = g.node_count();
     let deg2: Vec<u32> = (0..n as u32).filter(|&v| g.degree(v) >= 2).collect();
-    let closed: u64 = if deg2.is_empty() {
+    // Streams of their own, apart from the transitivity estimator's.
+    let closed = if deg2.is_empty() {
         0
     } else {
-        (0..samples.div_ceil(BLOCK))
-            .into_par_iter()
-            .map(|b| {
-                // Streams of their own, apart from the transitivity estimator's.
-                let mut rng = block_rng(seed ^ 0xC1u64.rotate_left(56), b);
-                let take = BLOCK.min(samples - b * BLOCK);
-                let mut c = 0u64;
-                for _ in 0..take {
-                    let v = deg2[rng.random_range(0..deg2.len())];
-                    c += closes(g, v, &mut rng) as u64;
-                }
-                c
-            })
-            .sum()
+        count_successes(samples, seed ^ 0xC1u64.rotate_left(56), |rng| {
+            let v = deg2[rng.random_range(0..deg2.len())];
+            closes(g, v, rng)
+        })
     };
-    let p = if samples == 0 {
-        0.0
-    } else {
-        closed as f64 / samples as f64
-    };
-    let se = (p * (1.0 - p) / samples.max(1) as f64).sqrt();
-    let iv = wilson(closed, samples, level);
     let share = if n == 0 {
         0.0
     } else {
         deg2.len() as f64 / n as f64
     };
+    let (average_deg2, average_zeros) = proportion(closed, samples, level, NAME, share);
     AverageClusteringEstimate {
-        average_deg2: Figure::estimate(p, NAME, samples, se, iv),
-        average_zeros: Figure::estimate(
-            p * share,
-            NAME,
-            samples,
-            se * share,
-            Interval {
-                low: iv.low * share,
-                high: iv.high * share,
-                level,
-            },
-        ),
+        average_zeros,
+        average_deg2,
     }
 }
 
