@@ -246,11 +246,6 @@ impl IntIndex {
     pub fn into_ids(self) -> Vec<u64> {
         self.ids
     }
-
-    /// Memory held by the lookup structures, in bytes.
-    pub fn lookup_bytes(&self) -> usize {
-        self.rank.len() * 4 + self.sparse.capacity() * 16
-    }
 }
 
 /// Per-worker tally of text ids.
