@@ -30,12 +30,7 @@ fn bench(name: &str, g: &Csr) {
     let per = triangles::count(g);
     assert_eq!(per.total, tri, "{name}: totals disagree");
     assert_eq!(per.per_node.iter().sum::<u64>(), 3 * tri);
-    let wedges: u128 = (0..g.node_count() as u32)
-        .map(|v| {
-            let d = g.degree(v) as u128;
-            d * d.saturating_sub(1) / 2
-        })
-        .sum();
+    let wedges: u128 = plumb::clustering::wedge_total(g);
     let (comps, t_cc) = best(3, || components(g));
     let giant = comps.giant_nodes();
     // Single BFS from a few sources in the giant component; TEPS counts the component's edges.
@@ -113,12 +108,7 @@ fn end_to_end(g: &Csr) {
         )
         .unwrap();
         let tri = triangles::total(&h.csr);
-        let wedges: u128 = (0..h.node_count() as u32)
-            .map(|v| {
-                let d = h.csr.degree(v) as u128;
-                d * d.saturating_sub(1) / 2
-            })
-            .sum();
+        let wedges: u128 = plumb::clustering::wedge_total(&h.csr);
         3.0 * tri as f64 / wedges as f64
     });
     println!(

@@ -33,6 +33,20 @@ pub struct ClusteringStats {
     pub by_degree: Vec<DegreeClustering>,
 }
 
+/// Wedges (connected triples) centred at a node of degree `d`: C(d, 2).
+#[inline]
+pub fn wedges_at(d: u32) -> u128 {
+    let d = d as u128;
+    d * d.saturating_sub(1) / 2
+}
+
+/// Total wedges W = sum over nodes of C(d, 2), exact.
+pub fn wedge_total(g: &Csr) -> u128 {
+    (0..g.node_count() as u32)
+        .map(|v| wedges_at(g.degree(v)))
+        .sum()
+}
+
 /// c_v for every node (0 where the degree is below 2).
 pub fn local(g: &Csr, t: &Triangles) -> Vec<f64> {
     (0..g.node_count() as u32)
@@ -47,15 +61,10 @@ pub fn local(g: &Csr, t: &Triangles) -> Vec<f64> {
         .collect()
 }
 
-pub fn stats(g: &Csr, t: &Triangles) -> ClusteringStats {
+/// Summary figures from triangle counts and the local clustering `c` (from [`local`]).
+pub fn stats(g: &Csr, t: &Triangles, c: &[f64]) -> ClusteringStats {
     let n = g.node_count();
-    let c = local(g, t);
-    let wedges: u128 = (0..n as u32)
-        .map(|v| {
-            let d = g.degree(v) as u128;
-            d * d.saturating_sub(1) / 2
-        })
-        .sum();
+    let wedges = wedge_total(g);
     let deg2 = (0..n as u32).filter(|&v| g.degree(v) >= 2).count() as u64;
     let sum_c = det_sum(n, |v| c[v]);
     const ALG: &str = "forward triangle listing (Schank & Wagner 2005)";

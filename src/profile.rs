@@ -143,8 +143,8 @@ pub fn profile(g: &Graph, opts: &ProfileOptions, progress: &dyn Progress) -> (Pr
 
     clock.start("triangles");
     let tri = triangles::count(csr);
-    let clustering = clustering::stats(csr, &tri);
     let local = clustering::local(csr, &tri);
+    let clustering = clustering::stats(csr, &tri, &local);
     clock.done("triangles");
 
     let mut eccentricity = vec![None; n];

@@ -75,8 +75,7 @@ pub fn estimate(g: &Csr, samples: u64, level: f64, seed: u64) -> WedgeEstimate {
     let mut cum = Vec::with_capacity(n);
     let mut acc: u128 = 0;
     for v in 0..n as u32 {
-        let d = g.degree(v) as u128;
-        acc += d * d.saturating_sub(1) / 2;
+        acc += crate::clustering::wedges_at(g.degree(v));
         cum.push(acc);
     }
     let wedges = acc;
