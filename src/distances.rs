@@ -66,6 +66,31 @@ pub fn sources_batch(
     frontier: &mut Vec<u64>,
     next: &mut Vec<u64>,
 ) -> (Vec<u64>, Vec<u32>) {
+    batch::<false>(g, sources, seen, frontier, next, &mut Vec::new())
+}
+
+/// As [`sources_batch`], and also `per_source[d - 1][i]` = nodes at distance d from
+/// `sources[i]`, for the estimators that need each source's own distribution.
+pub fn sources_batch_each(
+    g: &Csr,
+    sources: &[u32],
+    seen: &mut [u64],
+    frontier: &mut Vec<u64>,
+    next: &mut Vec<u64>,
+    per_source: &mut Vec<[u64; 64]>,
+) -> (Vec<u64>, Vec<u32>) {
+    per_source.clear();
+    batch::<true>(g, sources, seen, frontier, next, per_source)
+}
+
+fn batch<const EACH: bool>(
+    g: &Csr,
+    sources: &[u32],
+    seen: &mut [u64],
+    frontier: &mut Vec<u64>,
+    next: &mut Vec<u64>,
+    per_source: &mut Vec<[u64; 64]>,
+) -> (Vec<u64>, Vec<u32>) {
     let k = sources.len();
     assert!(k <= 64, "a batch holds at most 64 sources");
     let full = if k == 64 { u64::MAX } else { (1u64 << k) - 1 };
@@ -84,6 +109,7 @@ pub fn sources_batch(
         level += 1;
         let mut any = 0u64;
         let mut reached = 0u64;
+        let mut each = [0u64; 64];
         for v in 0..seen.len() {
             if seen[v] == full {
                 next[v] = 0;
@@ -99,12 +125,22 @@ pub fn sources_batch(
                 seen[v] |= new;
                 reached += new.count_ones() as u64;
                 any |= new;
+                if EACH {
+                    let mut bits = new;
+                    while bits != 0 {
+                        each[bits.trailing_zeros() as usize] += 1;
+                        bits &= bits - 1;
+                    }
+                }
             }
         }
         if any == 0 {
             break;
         }
         counts.push(reached);
+        if EACH {
+            per_source.push(each);
+        }
         let mut bits = any;
         while bits != 0 {
             ecc[bits.trailing_zeros() as usize] = level;

@@ -84,31 +84,38 @@ fn covers(f: &plumb::figure::Figure, exact: f64) -> bool {
 }
 
 #[test]
-fn sampled_bfs_mean_distance_intervals_cover_at_the_nominal_rate() {
+fn sampled_bfs_distance_intervals_cover_at_the_nominal_rate() {
     for (name, g) in graphs() {
-        let c = plumb::components::components(&g);
-        let sub = plumb::components::induced(&g, &c.giant_nodes());
-        let ap = plumb::distances::all_pairs(&sub);
-        let pairs: u64 = ap.pairs.iter().sum();
-        let exact = ap
-            .pairs
-            .iter()
-            .enumerate()
-            .map(|(d, &c)| d as f64 * c as f64)
-            .sum::<f64>()
-            / pairs as f64;
+        let (sub, mean, eff, shares) = exact_distances(&g);
+        // The most common distance: its share's interval is checked too.
+        let mode = (0..shares.len())
+            .max_by(|&a, &b| shares[a].total_cmp(&shares[b]))
+            .unwrap();
         let runs = 1000;
-        let covered = (0..runs)
-            .filter(|&seed| {
-                covers(
-                    &plumb::estimate::distance::estimate(&sub, 40, 0.95, seed).mean,
-                    exact,
-                )
-            })
-            .count();
-        let rate = covered as f64 / runs as f64;
-        println!("{name}: mean distance {exact:.6}, 95% interval covered {rate:.3}");
-        assert!((0.92..=0.985).contains(&rate), "{name}: coverage {rate}");
+        let (mut cm, mut ce, mut cs) = (0, 0, 0);
+        for seed in 0..runs {
+            let e = plumb::estimate::distance::estimate(&sub, 40, 0.95, seed);
+            cm += covers(&e.mean, mean) as u32;
+            ce += covers(&e.effective_diameter, eff) as u32;
+            cs += covers(&e.distribution[mode], shares[mode]) as u32;
+        }
+        let rate = |c: u32| c as f64 / runs as f64;
+        println!(
+            "{name}: mean distance {mean:.6} covered {:.3}; effective diameter {eff:.4} \
+             (bootstrap) covered {:.3}; share at distance {} {:.4} covered {:.3}",
+            rate(cm),
+            rate(ce),
+            mode + 1,
+            shares[mode],
+            rate(cs)
+        );
+        for c in [cm, ce, cs] {
+            assert!(
+                (0.92..=0.985).contains(&rate(c)),
+                "{name}: coverage {}",
+                rate(c)
+            );
+        }
     }
 }
 
@@ -132,6 +139,51 @@ fn node_wedge_clustering_intervals_cover_at_the_nominal_rate() {
         assert!(
             (0.92..=0.985).contains(&rz) && (0.92..=0.985).contains(&rd),
             "{name}"
+        );
+    }
+}
+
+/// Exact mean distance and effective diameter of the giant component, by all-pairs BFS.
+fn exact_distances(g: &Csr) -> (Csr, f64, f64, Vec<f64>) {
+    let c = plumb::components::components(g);
+    let sub = plumb::components::induced(g, &c.giant_nodes());
+    let ap = plumb::distances::all_pairs(&sub);
+    let s = plumb::distances::DistanceStats::from_all_pairs(&ap, "giant", 0);
+    let pairs = s.pairs as f64;
+    let shares = ap.pairs[1..].iter().map(|&c| c as f64 / pairs).collect();
+    (sub, s.mean.value, s.effective_diameter.value, shares)
+}
+
+#[test]
+fn hyperball_intervals_cover_and_land_within_three_standard_errors() {
+    use plumb::estimate::hyperball::{BallOptions, estimate};
+    for (name, g) in graphs() {
+        let (sub, mean, eff, _) = exact_distances(&g);
+        let runs = 200;
+        let (mut cm, mut ce, mut within3) = (0, 0, 0);
+        for seed in 0..runs {
+            let opts = BallOptions {
+                seed,
+                ..Default::default()
+            };
+            let e = estimate(&sub, &opts, &|_| {});
+            cm += covers(&e.mean, mean) as u32;
+            ce += covers(&e.effective_diameter, eff) as u32;
+            within3 += ((e.mean.value - mean).abs() <= 3.0 * e.mean.std_error.unwrap()) as u32;
+        }
+        let (rm, re) = (cm as f64 / runs as f64, ce as f64 / runs as f64);
+        println!(
+            "{name}: HyperBall mean distance {mean:.6} covered {rm:.3}, within 3 s.e. {within3}/{runs}; \
+             effective diameter {eff:.4} covered {re:.3}"
+        );
+        assert!((0.92..=0.985).contains(&rm), "{name}: mean coverage {rm}");
+        assert!((0.92..=0.985).contains(&re), "{name}: eff. diameter {re}");
+        // The acceptance check proper: the default run (seed 1) within 3 standard errors.
+        let e = estimate(&sub, &BallOptions::default(), &|_| {});
+        assert!(
+            (e.mean.value - mean).abs() <= 3.0 * e.mean.std_error.unwrap(),
+            "{name}: {:?} vs {mean}",
+            e.mean
         );
     }
 }

@@ -1,65 +1,285 @@
-//! Mean distance of a connected graph from breadth-first searches at uniformly sampled sources
+//! Distances of a connected graph from breadth-first searches at uniformly sampled sources
 //! (Eppstein & Wang, "Fast approximation of centrality", J. Graph Algorithms Appl. 8(1), 2004):
-//! each source's mean distance to all other nodes is exact, and the mean over sources estimates
-//! the mean over all pairs, with a finite-population corrected normal interval over sources.
+//! each source's distances to all other nodes are exact, so the mean over sources estimates the
+//! mean over all pairs. Intervals: finite-population corrected normal intervals over sources for
+//! the mean distance and the distribution, and a seeded percentile bootstrap over sources (Efron,
+//! "Bootstrap methods: another look at the jackknife", Ann. Statist. 7, 1979) for the effective
+//! diameter, which is not a mean. Sources run 64 at a time in one bit-parallel search.
 
+use rand::{RngExt, SeedableRng};
+use rand_chacha::ChaCha8Rng;
 use rayon::prelude::*;
+use rustc_hash::FxHashMap;
 
-use super::sample::{mean_interval, without_replacement};
-use crate::bfs::Bfs;
+use super::interval::z_for;
+use super::sample::mean_interval;
 use crate::csr::Csr;
-use crate::figure::Figure;
+use crate::distances::{effective_diameter, sources_batch_each};
+use crate::figure::{Figure, Interval};
+use crate::numeric::det_sum;
+
+/// Bootstrap resamples for the effective diameter.
+const RESAMPLES: usize = 1000;
+/// Sources in the first stage of a precision-driven run (two bit-parallel batches).
+pub const PILOT: usize = 128;
 
 #[derive(Debug, Clone, PartialEq)]
-pub struct DistanceEstimate {
-    pub mean: Figure,
-    /// Ordered pairs at each distance from the sampled sources, summed.
-    pub sampled_pairs: Vec<u64>,
+pub struct SampledDistances {
+    pub nodes: u64,
     pub sources: u64,
+    pub mean: Figure,
+    /// 90th-percentile distance, interpolated, self pairs excluded.
+    pub effective_diameter: Figure,
+    /// Share of ordered pairs at distance d = 1, 2, … (index 0 is distance 1).
+    pub distribution: Vec<Figure>,
+    /// Ordered pairs at each distance from the sampled sources, summed (`[0]` = 0).
+    pub sampled_pairs: Vec<u64>,
+    /// The largest distance seen: a lower bound on the diameter.
+    pub farthest: u32,
 }
 
-/// `g` must be connected (pass the giant component).
-pub fn estimate(g: &Csr, sources: usize, level: f64, seed: u64) -> DistanceEstimate {
+/// Nodes at each distance (`[d - 1]` = distance d) from each source.
+type PerSource = Vec<Vec<u64>>;
+
+/// A uniform sample of `k` of `0..n` whose every prefix is itself a uniform sample (partial
+/// Fisher–Yates with the swaps kept in a map, so memory is O(k) however large n is).
+pub fn prefix_sample(n: u32, k: usize, seed: u64) -> Vec<u32> {
+    let k = k.min(n as usize);
+    let mut rng = ChaCha8Rng::seed_from_u64(seed);
+    let mut swapped: FxHashMap<u32, u32> = FxHashMap::default();
+    (0..k as u32)
+        .map(|i| {
+            let j = rng.random_range(i..n);
+            let at_j = *swapped.get(&j).unwrap_or(&j);
+            let at_i = *swapped.get(&i).unwrap_or(&i);
+            swapped.insert(j, at_i);
+            at_j
+        })
+        .collect()
+}
+
+/// Per-source distance counts for `sources`, 64 per bit-parallel batch, batches in parallel.
+fn search(g: &Csr, sources: &[u32]) -> PerSource {
     let n = g.node_count();
-    let all: Vec<u32> = (0..n as u32).collect();
-    let picked = without_replacement(&all, sources, seed);
-    let per: Vec<(f64, Vec<u64>)> = picked
-        .par_iter()
+    let batches: Vec<PerSource> = sources
+        .par_chunks(64)
         .map_init(
-            || Bfs::new(n),
-            |b, &s| {
-                b.run(g, s);
-                let sum: u64 = b
-                    .levels
-                    .iter()
-                    .enumerate()
-                    .map(|(d, &c)| d as u64 * c)
-                    .sum();
-                let reached = b.reached().saturating_sub(1).max(1);
-                (sum as f64 / reached as f64, b.levels.clone())
+            || (vec![0u64; n], vec![0u64; n], vec![0u64; n], Vec::new()),
+            |(seen, frontier, next, each), batch| {
+                sources_batch_each(g, batch, seen, frontier, next, each);
+                (0..batch.len())
+                    .map(|i| each.iter().map(|level| level[i]).collect())
+                    .collect()
             },
         )
         .collect();
-    let means: Vec<f64> = per.iter().map(|p| p.0).collect();
-    let mut sampled_pairs = vec![0u64];
-    for (_, levels) in &per {
-        if levels.len() > sampled_pairs.len() {
-            sampled_pairs.resize(levels.len(), 0);
-        }
-        for (d, &c) in levels.iter().enumerate().skip(1) {
-            sampled_pairs[d] += c;
+    batches.into_iter().flatten().collect()
+}
+
+/// Estimate from `sources` uniformly sampled sources. `g` must be connected (pass the giant
+/// component).
+pub fn estimate(g: &Csr, sources: usize, level: f64, seed: u64) -> SampledDistances {
+    let picked = prefix_sample(g.node_count() as u32, sources, seed);
+    summarise(g.node_count() as u64, &search(g, &picked), level, seed)
+}
+
+/// Estimate with enough sources for the mean distance to lie within ±`relative` of its value at
+/// `level` (Stein's two-stage procedure: a pilot of [`PILOT`] sources measures the spread, which
+/// sizes the rest; C. Stein, Ann. Math. Statist. 16, 1945), never more than `max_sources`.
+pub fn estimate_to_precision(
+    g: &Csr,
+    relative: f64,
+    level: f64,
+    max_sources: usize,
+    seed: u64,
+) -> SampledDistances {
+    let n = g.node_count();
+    let order = prefix_sample(n as u32, max_sources.max(PILOT), seed);
+    let pilot_len = PILOT.min(order.len());
+    let mut per = search(g, &order[..pilot_len]);
+    let pilot = summarise(n as u64, &per, level, seed);
+    let need = sources_for(&pilot.mean, relative, level, n as u64).min(order.len());
+    if need > per.len() {
+        // Whole batches: a partial last batch costs the same as a full one.
+        let end = need.div_ceil(64).saturating_mul(64).min(order.len());
+        per.extend(search(g, &order[per.len()..end]));
+    } else {
+        return pilot;
+    }
+    summarise(n as u64, &per, level, seed)
+}
+
+/// Sources that make the interval half-width `relative` × mean, from a pilot figure.
+pub fn sources_for(pilot: &Figure, relative: f64, level: f64, population: u64) -> usize {
+    let (Some(se), Some(k)) = (pilot.std_error, pilot.sample_size) else {
+        return 0;
+    };
+    if pilot.value <= 0.0 || k == 0 {
+        return 0;
+    }
+    // Undo the pilot's finite-population correction to get the per-source spread.
+    let fpc = (1.0 - k as f64 / population.max(1) as f64).max(1e-12);
+    let sd = se * (k as f64 / fpc).sqrt();
+    let k0 = (z_for(level) * sd / (relative * pilot.value)).powi(2);
+    let k = k0 / (1.0 + k0 / population as f64);
+    k.ceil() as usize
+}
+
+fn summarise(nodes: u64, per: &PerSource, level: f64, seed: u64) -> SampledDistances {
+    const NAME: &str =
+        "BFS from uniformly sampled sources (Eppstein & Wang 2004), normal interval (FPC)";
+    let k = per.len();
+    let others = nodes.saturating_sub(1).max(1) as f64;
+    let longest = per.iter().map(Vec::len).max().unwrap_or(0);
+    let means: Vec<f64> = per
+        .iter()
+        .map(|c| {
+            let s: u64 = c.iter().enumerate().map(|(d, &x)| (d as u64 + 1) * x).sum();
+            s as f64 / others
+        })
+        .collect();
+    let (mean, se, iv) = mean_interval(&means, nodes, level, 1.0, f64::INFINITY);
+    let distribution = (0..longest)
+        .map(|d| {
+            let shares: Vec<f64> = per
+                .iter()
+                .map(|c| c.get(d).copied().unwrap_or(0) as f64 / others)
+                .collect();
+            let (m, se, iv) = mean_interval(&shares, nodes, level, 0.0, 1.0);
+            Figure::estimate(m, NAME, k as u64, se, iv)
+        })
+        .collect();
+    let mut sampled_pairs = vec![0u64; longest + 1];
+    for c in per {
+        for (d, &x) in c.iter().enumerate() {
+            sampled_pairs[d + 1] += x;
         }
     }
-    let (mean, se, iv) = mean_interval(&means, n as u64, level, 1.0, f64::INFINITY);
-    DistanceEstimate {
-        mean: Figure::estimate(
-            mean,
-            "BFS from uniformly sampled sources (Eppstein & Wang 2004), normal interval (FPC)",
-            means.len() as u64,
-            se,
-            iv,
-        ),
+    let eff = effective_of(per.iter(), longest);
+    let effective_diameter = if k as u64 >= nodes {
+        // Every node was a source: a census has no sampling error.
+        Figure::estimate(
+            eff,
+            "BFS from every node",
+            k as u64,
+            0.0,
+            Interval {
+                low: eff,
+                high: eff,
+                level,
+            },
+        )
+    } else {
+        bootstrap_effective(per, longest, eff, level, seed)
+    };
+    SampledDistances {
+        nodes,
+        sources: k as u64,
+        mean: Figure::estimate(mean, NAME, k as u64, se, iv),
+        effective_diameter,
+        distribution,
         sampled_pairs,
-        sources: means.len() as u64,
+        farthest: longest as u32,
+    }
+}
+
+/// The effective diameter of the pairs from a collection of sources.
+fn effective_of<'a>(sources: impl Iterator<Item = &'a Vec<u64>>, longest: usize) -> f64 {
+    let mut at = vec![0u64; longest + 1];
+    for c in sources {
+        for (d, &x) in c.iter().enumerate() {
+            at[d + 1] += x;
+        }
+    }
+    let mut acc = 0u64;
+    let cum: Vec<f64> = at
+        .iter()
+        .map(|&x| {
+            acc += x;
+            acc as f64
+        })
+        .collect();
+    effective_diameter(&cum, 0.9)
+}
+
+fn bootstrap_effective(
+    per: &PerSource,
+    longest: usize,
+    value: f64,
+    level: f64,
+    seed: u64,
+) -> Figure {
+    let k = per.len();
+    // Resamples in parallel, each with its own stream: the same on any thread count.
+    let mut reps: Vec<f64> = (0..RESAMPLES as u64)
+        .into_par_iter()
+        .map(|b| {
+            let mut rng = ChaCha8Rng::seed_from_u64(seed ^ 0xB007_5742_u64.rotate_left(32));
+            rng.set_stream(b);
+            let pick: Vec<usize> = (0..k).map(|_| rng.random_range(0..k)).collect();
+            effective_of(pick.iter().map(|&i| &per[i]), longest)
+        })
+        .collect();
+    let centre = det_sum(reps.len(), |i| reps[i]) / reps.len() as f64;
+    let se = (det_sum(reps.len(), |i| (reps[i] - centre).powi(2)) / (reps.len() - 1) as f64).sqrt();
+    reps.sort_by(f64::total_cmp);
+    let tail = (1.0 - level) / 2.0;
+    let at = |q: f64| reps[((q * RESAMPLES as f64).floor() as usize).min(RESAMPLES - 1)];
+    Figure::estimate(
+        value,
+        &format!(
+            "BFS from uniformly sampled sources (Eppstein & Wang 2004), percentile bootstrap \
+             over sources ({RESAMPLES} resamples)"
+        ),
+        k as u64,
+        se,
+        Interval {
+            low: at(tail).min(value),
+            high: at(1.0 - tail).max(value),
+            level,
+        },
+    )
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn prefixes_are_samples_without_replacement() {
+        let s = prefix_sample(1000, 300, 7);
+        let mut t = s.clone();
+        t.sort_unstable();
+        t.dedup();
+        assert_eq!(t.len(), 300);
+        assert!(s.iter().all(|&v| v < 1000));
+        assert_eq!(prefix_sample(1000, 100, 7), s[..100]);
+        let mut all = prefix_sample(50, 80, 1);
+        all.sort_unstable();
+        assert_eq!(all, (0..50).collect::<Vec<_>>());
+    }
+
+    #[test]
+    fn census_is_exact_and_threads_do_not_matter() {
+        let g = crate::generate::watts_strogatz(500, 6, 0.1, 2);
+        let ap = crate::distances::all_pairs(&g);
+        let e = estimate(&g, 500, 0.95, 3);
+        assert_eq!(e.sampled_pairs, ap.pairs);
+        let exact = crate::distances::DistanceStats::from_all_pairs(&ap, "all", 0);
+        assert!((e.mean.value - exact.mean.value).abs() < 1e-12);
+        assert_eq!(e.mean.std_error, Some(0.0));
+        assert_eq!(e.effective_diameter.value, exact.effective_diameter.value);
+        let g = crate::generate::watts_strogatz(3000, 6, 0.1, 2);
+        let one = rayon::ThreadPoolBuilder::new()
+            .num_threads(1)
+            .build()
+            .unwrap()
+            .install(|| estimate_to_precision(&g, 0.01, 0.95, 2000, 9));
+        assert_eq!(one, estimate_to_precision(&g, 0.01, 0.95, 2000, 9));
+        let iv = one.mean.interval.unwrap();
+        assert!(
+            (iv.high - iv.low) / 2.0 <= 0.0101 * one.mean.value,
+            "{iv:?}"
+        );
     }
 }
