@@ -48,7 +48,9 @@ fn bench(name: &str, g: &Csr) {
         );
     }
     let sub = induced(g, &giant);
-    let budget = plumb::profile::DEFAULT_EXACT_BUDGET;
+    let budget = plumb::profile::DEFAULT_EXACT_SECONDS
+        * plumb::plan::REFERENCE_RATES.bfs_words
+        * rayon::current_num_threads() as f64;
     let (d, t_diam) = best(1, || diameter::ifub(&sub, diameter::sweep(&sub), budget));
     // All-pairs rate on a slice of sources: time one parallel round of 4 batches per thread.
     let batches = 4 * rayon::current_num_threads();

@@ -16,7 +16,7 @@ pub struct DegreeClustering {
     pub low: u32,
     pub high: u32,
     pub nodes: u64,
-    pub mean: f64,
+    pub mean: Figure,
 }
 
 #[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
@@ -87,7 +87,7 @@ pub fn stats(g: &Csr, t: &Triangles, c: &[f64]) -> ClusteringStats {
                 low,
                 high,
                 nodes: members.len() as u64,
-                mean: s / members.len() as f64,
+                mean: Figure::exact_over(s / members.len() as f64, ALG, members.len() as u64),
             });
         }
         low = low.saturating_mul(2);

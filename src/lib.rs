@@ -24,6 +24,7 @@ pub mod limits;
 pub mod numeric;
 pub mod outfile;
 pub mod pernode;
+pub mod plan;
 pub mod profile;
 pub mod progress;
 pub mod slab;

@@ -11,7 +11,8 @@ use crate::profile::NodeTable;
 
 pub const HEADER: &str = "id\tdegree\ttriangles\tclustering\tcomponent\teccentricity\n";
 
-/// Render the table as TSV text. Clustering has 6 decimals; an unknown eccentricity is empty.
+/// Render the table as TSV text. Clustering has 6 decimals; a figure that was not computed
+/// (eccentricity beyond the diameter search, triangles when clustering was estimated) is empty.
 pub fn render(g: &Graph, t: &NodeTable) -> Vec<u8> {
     let n = g.node_count();
     let mut out = Vec::with_capacity(n * 32 + HEADER.len());
@@ -19,14 +20,13 @@ pub fn render(g: &Graph, t: &NodeTable) -> Vec<u8> {
     for v in 0..n as u32 {
         out.extend_from_slice(&g.ids.label_bytes(v));
         let i = v as usize;
-        let _ = write!(
-            out,
-            "\t{}\t{}\t{:.6}\t{}\t",
-            g.csr.degree(v),
-            t.triangles[i],
-            t.clustering[i],
-            t.component[i]
-        );
+        let _ = write!(out, "\t{}\t", g.csr.degree(v));
+        if let (Some(tri), Some(c)) = (&t.triangles, &t.clustering) {
+            let _ = write!(out, "{}\t{:.6}", tri[i], c[i]);
+        } else {
+            out.push(b'\t');
+        }
+        let _ = write!(out, "\t{}\t", t.component[i]);
         if let Some(e) = t.eccentricity[i] {
             let _ = write!(out, "{e}");
         }

@@ -1,5 +1,6 @@
-//! The exact structure profile of a loaded graph: degrees, components, triangles and clustering,
-//! and distances on the giant component when their cost fits the budget.
+//! The structure profile of a loaded graph: degrees and components (always exact), clustering
+//! and distances on the giant component, each exact when the planner predicts it fits the time
+//! budget and estimated with intervals otherwise.
 
 use std::time::Instant;
 
@@ -7,41 +8,73 @@ use serde::{Deserialize, Serialize};
 
 use crate::clustering::{self, ClusteringStats};
 use crate::components::{self, ComponentStats};
+use crate::csr::Csr;
 use crate::degrees::{self, DegreeStats};
 use crate::diameter;
 use crate::distances::{self, DistanceStats};
+use crate::estimate::hyperball::{self, BallOptions};
+use crate::estimate::{distance as sampled, wedges};
 use crate::figure::Figure;
 use crate::graph::Graph;
 use crate::intake::{Intake, Stage};
+use crate::plan::{
+    self, Choice, Decision, DistanceEstimator, REFERENCE_RATES, Rates, all_pairs_work, ball_work,
+    bfs_work, seconds,
+};
 use crate::progress::{Progress, Unit};
 use crate::triangles;
 
 #[derive(Debug, Clone)]
 pub struct ProfileOptions {
-    /// Most work units (64-bit word operations of the all-pairs search) exact distances may cost.
-    pub exact_budget: f64,
-    /// BFS sources for the mean-distance estimate when exact distances are over budget.
-    pub sources: usize,
+    /// Seconds an exact method may be predicted to take before the planner estimates instead.
+    pub exact_seconds: f64,
+    /// Exact or estimated clustering (auto: by the budget).
+    pub clustering: Choice,
+    /// Exact or estimated distances (auto: by the budget).
+    pub distances: Choice,
+    /// Which estimator estimates distances.
+    pub distance_estimator: DistanceEstimator,
+    /// Half-width of the transitivity and average-clustering intervals when estimated.
+    pub clustering_tolerance: f64,
+    /// Half-width of each C(k) bin's interval when estimated.
+    pub bin_tolerance: f64,
+    /// Half-width of the mean-distance interval, relative to the mean, when estimated.
+    pub distance_tolerance: f64,
+    /// Most BFS sources the distance estimate may use.
+    pub max_sources: usize,
+    /// HyperBall registers (log2) and repetitions, when it runs.
+    pub ball: BallOptions,
     /// Confidence level of every interval.
     pub level: f64,
     /// Seed of every random choice.
     pub seed: u64,
+    /// Threads the cost predictions assume (default: the pool's).
+    pub threads: usize,
+    pub rates: Rates,
 }
 
 impl Default for ProfileOptions {
     fn default() -> Self {
         ProfileOptions {
-            exact_budget: DEFAULT_EXACT_BUDGET,
-            sources: 256,
+            exact_seconds: DEFAULT_EXACT_SECONDS,
+            clustering: Choice::Auto,
+            distances: Choice::Auto,
+            distance_estimator: DistanceEstimator::Cheaper,
+            clustering_tolerance: 0.002,
+            bin_tolerance: 0.01,
+            distance_tolerance: 0.01,
+            max_sources: 4096,
+            ball: BallOptions::default(),
             level: 0.95,
             seed: 1,
+            threads: rayon::current_num_threads(),
+            rates: REFERENCE_RATES,
         }
     }
 }
 
-/// About half a minute of all-pairs work on two cores of the reference machine (the bench
-/// `exact` measures the rate; see the README).
-pub const DEFAULT_EXACT_BUDGET: f64 = 6e10;
+/// Default time for each exact figure group.
+pub const DEFAULT_EXACT_SECONDS: f64 = 20.0;
 
 /// The diameter of the node set distances are reported on.
 #[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
@@ -53,18 +86,32 @@ pub struct DiameterFigures {
     pub bfs_runs: u64,
 }
 
-/// What became of the all-pairs distance figures.
+/// Distance figures estimated on a connected node set.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+pub struct EstimatedDistances {
+    pub node_set: String,
+    pub nodes: u64,
+    pub mean: Figure,
+    /// 90th-percentile distance, interpolated, self pairs excluded.
+    pub effective_diameter: Figure,
+    /// Share of ordered pairs at distance d = 1, 2, … (index 0 is distance 1).
+    pub distribution: Vec<Figure>,
+    /// Ordered pairs of distinct nodes of the whole graph that cannot reach each other (exact,
+    /// from the components).
+    pub unreachable_pairs_in_graph: u64,
+    /// BFS sources used (sampled sources), if that estimator ran.
+    pub sources: Option<u64>,
+    /// Registers per counter and each counter's relative standard error, if HyperBall ran.
+    pub registers: Option<u32>,
+    pub counter_rse: Option<f64>,
+}
+
+/// The distance figures, exact or estimated.
 #[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
 #[serde(tag = "status", rename_all = "kebab-case")]
 pub enum Distances {
     Exact(Box<DistanceStats>),
-    /// Exact all-pairs exceeds the budget: the mean distance is estimated from sampled sources.
-    OverBudget {
-        estimated_cost: f64,
-        budget: f64,
-        /// The estimate (an interval always comes with it).
-        mean: Figure,
-    },
+    Estimated(Box<EstimatedDistances>),
     /// No pairs to measure (no edges).
     Empty,
 }
@@ -79,14 +126,17 @@ pub struct Profile {
     pub distance_node_set: String,
     pub diameter: Option<DiameterFigures>,
     pub distances: Distances,
+    /// Which method ran for each figure group, and why.
+    pub plan: Vec<Decision>,
     pub stages: Vec<Stage>,
 }
 
 /// Per-node results, indexed by dense node index.
 #[derive(Debug, Clone)]
 pub struct NodeTable {
-    pub triangles: Vec<u64>,
-    pub clustering: Vec<f64>,
+    /// Per-node triangles and local clustering, when clustering was exact.
+    pub triangles: Option<Vec<u64>>,
+    pub clustering: Option<Vec<f64>>,
     /// Component rank: 1 = the giant component, then by size.
     pub component: Vec<u32>,
     /// Eccentricity within the component, where it was computed.
@@ -113,15 +163,52 @@ impl Clock<'_> {
     }
 }
 
-/// Estimated work of exact all-pairs distances on a connected graph of `n` nodes, `m` edges and
-/// (at most) `levels` BFS levels: one pass over nodes and adjacency per level per 64 sources.
-pub fn all_pairs_cost(n: u64, m: u64, levels: u64) -> f64 {
-    n.div_ceil(64) as f64 * (levels + 1) as f64 * (n + 2 * m) as f64
+/// Decide exact or estimate for one group: the user's choice, or exact when its predicted time
+/// fits the budget.
+fn decide(choice: Choice, predicted: f64, budget: f64) -> bool {
+    match choice {
+        Choice::Exact => true,
+        Choice::Estimate => false,
+        Choice::Auto => predicted <= budget,
+    }
+}
+
+fn why(choice: Choice, exact: bool, what: &str, predicted: f64, budget: f64) -> String {
+    match (choice, exact) {
+        (Choice::Auto, true) => format!(
+            "exact {what} predicted {} on this machine, within the {} budget",
+            secs(predicted),
+            secs(budget)
+        ),
+        (Choice::Auto, false) => format!(
+            "exact {what} predicted {}, over the {} budget",
+            secs(predicted),
+            secs(budget)
+        ),
+        _ => format!(
+            "chosen by the user (exact {what} predicted {})",
+            secs(predicted)
+        ),
+    }
+}
+
+fn secs(s: f64) -> String {
+    if s < 1.0 {
+        format!("{s:.2} s")
+    } else if s < 100.0 {
+        format!("{s:.1} s")
+    } else {
+        format!("{s:.2e} s")
+    }
 }
 
 pub fn profile(g: &Graph, opts: &ProfileOptions, progress: &dyn Progress) -> (Profile, NodeTable) {
     let csr = &g.csr;
     let n = csr.node_count();
+    let threads = opts.threads;
+    let budget = opts.exact_seconds;
+    let user_budget = |c: Choice| (c == Choice::Auto).then_some(budget);
+    let mut plan = Vec::new();
     let mut clock = Clock {
         at: Instant::now(),
         stages: Vec::new(),
@@ -141,11 +228,49 @@ pub fn profile(g: &Graph, opts: &ProfileOptions, progress: &dyn Progress) -> (Pr
     let component: Vec<u32> = comps.label.iter().map(|&l| rank[l as usize]).collect();
     clock.done("components");
 
-    clock.start("triangles");
-    let tri = triangles::count(csr);
-    let local = clustering::local(csr, &tri);
-    let clustering = clustering::stats(csr, &tri, &local);
-    clock.done("triangles");
+    let tri_secs = seconds(plan::triangle_work(csr), opts.rates.triangle, threads);
+    let exact_clustering = decide(opts.clustering, tri_secs, budget);
+    let (clustering, tri_per_node, local) = if exact_clustering {
+        clock.start("triangles");
+        let tri = triangles::count(csr);
+        let local = clustering::local(csr, &tri);
+        let stats = clustering::stats(csr, &tri, &local);
+        clock.done("triangles");
+        (stats, Some(tri.per_node), Some(local))
+    } else {
+        clock.start("sampled clustering");
+        let stats = wedges::sampled_stats(
+            csr,
+            opts.clustering_tolerance,
+            opts.bin_tolerance,
+            opts.level,
+            opts.seed,
+        );
+        clock.done("sampled clustering");
+        (stats, None, None)
+    };
+    plan.push(Decision {
+        group: "clustering".into(),
+        method: if exact_clustering {
+            "exact: forward triangle listing".into()
+        } else {
+            format!(
+                "wedge sampling to ±{} (C(k) bins to ±{}) at {}%",
+                opts.clustering_tolerance,
+                opts.bin_tolerance,
+                100.0 * opts.level
+            )
+        },
+        exact_seconds: tri_secs,
+        budget_seconds: user_budget(opts.clustering),
+        reason: why(
+            opts.clustering,
+            exact_clustering,
+            "triangle listing",
+            tri_secs,
+            budget,
+        ),
+    });
 
     let mut eccentricity = vec![None; n];
     let giant = comps.giant_nodes();
@@ -167,20 +292,23 @@ pub fn profile(g: &Graph, opts: &ProfileOptions, progress: &dyn Progress) -> (Pr
         (None, Distances::Empty)
     } else {
         let sub = components::induced(csr, &giant);
+        let (sn, sm) = (sub.node_count() as u64, sub.edge_count());
         clock.start("diameter");
         let sweep = diameter::sweep(&sub);
         let sweep_bound = sweep.lower;
-        // All-pairs gives the exact diameter too; when it fits the budget it replaces iFUB.
-        let cost = all_pairs_cost(
-            sub.node_count() as u64,
-            sub.edge_count(),
-            sweep.lower as u64,
+        let levels = sweep.lower as u64;
+        let ap_secs = seconds(
+            all_pairs_work(sn, sm, levels),
+            opts.rates.bfs_words,
+            threads,
         );
-        let all = cost <= opts.exact_budget;
+        let all = decide(opts.distances, ap_secs, budget);
+        // The diameter search gets the same time as any exact group, in BFS words.
+        let word_budget = budget * opts.rates.bfs_words * threads as f64;
         let d = if all {
             None
         } else {
-            Some(diameter::ifub(&sub, sweep, opts.exact_budget))
+            Some(diameter::ifub(&sub, sweep, word_budget))
         };
         clock.done("diameter");
         let dist = if all {
@@ -191,16 +319,23 @@ pub fn profile(g: &Graph, opts: &ProfileOptions, progress: &dyn Progress) -> (Pr
             }
             let stats = DistanceStats::from_all_pairs(&ap, &node_set, unreachable);
             clock.done("all-pairs distances");
+            plan.push(Decision {
+                group: "distances".into(),
+                method: "exact: all-pairs bit-parallel BFS".into(),
+                exact_seconds: ap_secs,
+                budget_seconds: user_budget(opts.distances),
+                reason: why(opts.distances, true, "all-pairs BFS", ap_secs, budget),
+            });
             Distances::Exact(Box::new(stats))
         } else {
-            clock.start("sampled distances");
-            let e = crate::estimate::distance::estimate(&sub, opts.sources, opts.level, opts.seed);
-            clock.done("sampled distances");
-            Distances::OverBudget {
-                estimated_cost: cost,
-                budget: opts.exact_budget,
-                mean: e.mean,
-            }
+            let (est, decision) =
+                estimate_distances(&sub, opts, levels, progress, &mut clock, ap_secs);
+            plan.push(decision);
+            Distances::Estimated(Box::new(EstimatedDistances {
+                node_set: node_set.clone(),
+                unreachable_pairs_in_graph: unreachable,
+                ..est
+            }))
         };
         let figures = match (&dist, d) {
             (Distances::Exact(s), _) => DiameterFigures {
@@ -222,7 +357,7 @@ pub fn profile(g: &Graph, opts: &ProfileOptions, progress: &dyn Progress) -> (Pr
                         Figure::bounds(
                             d.lower as f64,
                             d.upper as f64,
-                            "double sweep + iFUB stopped at the work budget",
+                            "double sweep + iFUB stopped at the time budget",
                         )
                     },
                     double_sweep_bound: d.double_sweep_bound,
@@ -241,13 +376,146 @@ pub fn profile(g: &Graph, opts: &ProfileOptions, progress: &dyn Progress) -> (Pr
         distance_node_set: node_set,
         diameter,
         distances,
+        plan,
         stages: clock.stages,
     };
     let table = NodeTable {
-        triangles: tri.per_node,
+        triangles: tri_per_node,
         clustering: local,
         component,
         eccentricity,
     };
     (profile, table)
+}
+
+/// Distances of the connected `sub` by the sampled-source or HyperBall estimator, whichever the
+/// options ask for or is predicted cheaper for the requested precision.
+fn estimate_distances(
+    sub: &Csr,
+    opts: &ProfileOptions,
+    levels: u64,
+    progress: &dyn Progress,
+    clock: &mut Clock,
+    ap_secs: f64,
+) -> (EstimatedDistances, Decision) {
+    let (sn, sm) = (sub.node_count() as u64, sub.edge_count());
+    let threads = opts.threads;
+    let registers = 1u64 << opts.ball.log2_registers;
+    // HyperBall runs about as many rounds as the diameter, of which the sweep gives a bound.
+    let ball_secs = seconds(
+        ball_work(sn, sm, registers, levels + 1, opts.ball.repeats as u64),
+        opts.rates.ball_bytes,
+        threads,
+    );
+    let mut pilot = None;
+    let use_ball = match opts.distance_estimator {
+        DistanceEstimator::Ball => true,
+        DistanceEstimator::Sources => false,
+        DistanceEstimator::Cheaper => {
+            clock.start("sampled distances");
+            let p = sampled::pilot(sub, opts.level, opts.max_sources, opts.seed);
+            let k = p.sources_needed(opts.distance_tolerance, opts.level) as u64;
+            let src_secs = seconds(bfs_work(k, sn, sm, levels), opts.rates.bfs_words, threads);
+            pilot = Some((p, src_secs));
+            ball_secs < src_secs
+        }
+    };
+    let what = why(
+        opts.distances,
+        false,
+        "all-pairs BFS",
+        ap_secs,
+        opts.exact_seconds,
+    );
+    let budget_seconds = (opts.distances == Choice::Auto).then_some(opts.exact_seconds);
+    if use_ball {
+        clock.start("HyperBall");
+        let ball = BallOptions {
+            level: opts.level,
+            seed: opts.seed,
+            ..opts.ball
+        };
+        let e = hyperball::estimate(sub, &ball, &|_| progress.advance(1));
+        clock.done("HyperBall");
+        let mut reason = what;
+        if let Some((_, src)) = &pilot {
+            reason += &format!(
+                "; HyperBall predicted {} against {} for sampled sources",
+                secs(ball_secs),
+                secs(*src)
+            );
+        }
+        (
+            EstimatedDistances {
+                node_set: String::new(),
+                nodes: sn,
+                mean: e.mean,
+                effective_diameter: e.effective_diameter,
+                distribution: e.distribution,
+                unreachable_pairs_in_graph: 0,
+                sources: None,
+                registers: Some(e.registers),
+                counter_rse: Some(e.counter_rse),
+            },
+            Decision {
+                group: "distances".into(),
+                method: format!(
+                    "HyperBall, {} registers per node × {} hash seeds",
+                    e.registers, opts.ball.repeats
+                ),
+                exact_seconds: ap_secs,
+                budget_seconds,
+                reason,
+            },
+        )
+    } else {
+        let (e, reason) = match pilot {
+            Some((p, src_secs)) => {
+                let e = p.finish(sub, opts.distance_tolerance, opts.level, opts.seed);
+                let reason = format!(
+                    "{what}; sampled sources predicted {} against {} for HyperBall",
+                    secs(src_secs),
+                    secs(ball_secs)
+                );
+                (e, reason)
+            }
+            None => {
+                clock.start("sampled distances");
+                let e = sampled::estimate_to_precision(
+                    sub,
+                    opts.distance_tolerance,
+                    opts.level,
+                    opts.max_sources,
+                    opts.seed,
+                );
+                (e, what)
+            }
+        };
+        clock.done("sampled distances");
+        (
+            EstimatedDistances {
+                node_set: String::new(),
+                nodes: sn,
+                mean: e.mean,
+                effective_diameter: e.effective_diameter,
+                distribution: e.distribution,
+                unreachable_pairs_in_graph: 0,
+                sources: Some(e.sources),
+                registers: None,
+                counter_rse: None,
+            },
+            Decision {
+                group: "distances".into(),
+                method: format!(
+                    "BFS from {} sampled sources, to ±{}% of the mean at {}%",
+                    e.sources,
+                    100.0 * opts.distance_tolerance,
+                    100.0 * opts.level
+                ),
+                exact_seconds: ap_secs,
+                budget_seconds,
+                reason,
+            },
+        )
+    }
 }

@@ -49,13 +49,8 @@ enum Command {
         /// eccentricity) as TSV; zstd-compressed when the name ends in .zst.
         #[arg(long, value_name = "FILE")]
         per_node: Option<PathBuf>,
-        /// Work allowed for exact all-pairs distances (64-bit word operations, e.g. 2e11);
-        /// beyond it they are skipped and the report says so.
-        #[arg(long, value_name = "OPS", default_value_t = plumb::profile::DEFAULT_EXACT_BUDGET)]
-        exact_budget: f64,
-        /// Seed of every random choice (same seed and input, same output on any thread count).
-        #[arg(long, default_value_t = 1)]
-        seed: u64,
+        #[command(flatten)]
+        plan: PlanArgs,
     },
     /// Read an edge file and show what was read: sizes, cleaning counts, degrees, timings.
     Intake {
@@ -89,6 +84,128 @@ enum Command {
         #[arg(long, default_value_t = 1)]
         weeks: u32,
     },
+}
+
+/// How each figure group is computed: exact within a time budget, or estimated to a margin.
+#[derive(ClapArgs, Debug)]
+struct PlanArgs {
+    /// Seconds each exact figure group may be predicted to take on this machine; beyond it
+    /// the group is estimated with intervals.
+    #[arg(long, value_name = "SECONDS", default_value_t = plumb::profile::DEFAULT_EXACT_SECONDS,
+          value_parser = parse_seconds)]
+    exact_within: f64,
+    /// Clustering: exact or sampled by the budget (auto), or always one of them.
+    #[arg(long, value_enum, default_value_t = ClusteringArg::Auto)]
+    clustering: ClusteringArg,
+    /// Distances: exact or estimated by the budget (auto), exact all-pairs, BFS from sampled
+    /// sources, or HyperBall.
+    #[arg(long, value_enum, default_value_t = DistancesArg::Auto)]
+    distances: DistancesArg,
+    /// Half-width of the transitivity and average-clustering intervals when sampled.
+    #[arg(long, value_name = "PLUS_MINUS", default_value = "0.002", value_parser = parse_fraction)]
+    clustering_margin: f64,
+    /// Half-width of the mean-distance interval when estimated, relative to the mean
+    /// (0.01 or 1%).
+    #[arg(long, value_name = "FRACTION", default_value = "1%", value_parser = parse_fraction)]
+    distance_margin: f64,
+    /// Confidence level of every interval.
+    #[arg(long, value_name = "LEVEL", default_value = "95%", value_parser = parse_fraction)]
+    level: f64,
+    /// Most BFS sources a distance estimate may use.
+    #[arg(long, value_name = "N", default_value_t = 4096)]
+    max_sources: usize,
+    /// HyperBall registers per node (a power of two, 16 to 65536).
+    #[arg(long, value_name = "N", default_value_t = 64, value_parser = parse_registers)]
+    ball_registers: u32,
+    /// HyperBall runs with independent hash seeds (their spread gives the intervals).
+    #[arg(long, value_name = "N", default_value_t = 5, value_parser = clap::value_parser!(u32).range(2..))]
+    ball_runs: u32,
+    /// Seed of every random choice (same seed, input and methods: same output on any thread
+    /// count).
+    #[arg(long, default_value_t = 1)]
+    seed: u64,
+}
+
+#[derive(ValueEnum, Clone, Copy, Debug)]
+enum ClusteringArg {
+    Auto,
+    Exact,
+    Sampled,
+}
+
+#[derive(ValueEnum, Clone, Copy, Debug)]
+enum DistancesArg {
+    Auto,
+    Exact,
+    Sources,
+    Ball,
+}
+
+/// "0.95", "95%" -> 0.95; must lie strictly between 0 and 1.
+fn parse_fraction(s: &str) -> Result<f64, String> {
+    let v = match s.strip_suffix('%') {
+        Some(p) => p.trim().parse::<f64>().map(|x| x / 100.0),
+        None => s.trim().parse::<f64>(),
+    }
+    .map_err(|_| format!("expected a fraction such as 0.95 or 95%, got {s:?}"))?;
+    if v > 0.0 && v < 1.0 {
+        Ok(v)
+    } else {
+        Err(format!("{s} is not strictly between 0 and 1"))
+    }
+}
+
+fn parse_seconds(s: &str) -> Result<f64, String> {
+    match s.trim().trim_end_matches('s').parse::<f64>() {
+        Ok(v) if v >= 0.0 && v.is_finite() => Ok(v),
+        _ => Err(format!("expected seconds such as 20 or 0.5, got {s:?}")),
+    }
+}
+
+fn parse_registers(s: &str) -> Result<u32, String> {
+    let v: u32 = s
+        .parse()
+        .map_err(|_| format!("expected a number, got {s:?}"))?;
+    if v.is_power_of_two() && (16..=65536).contains(&v) {
+        Ok(v)
+    } else {
+        Err(format!("{v} is not a power of two from 16 to 65536"))
+    }
+}
+
+impl PlanArgs {
+    fn options(&self) -> plumb::profile::ProfileOptions {
+        use plumb::plan::{Choice, DistanceEstimator};
+        let (distances, distance_estimator) = match self.distances {
+            DistancesArg::Auto => (Choice::Auto, DistanceEstimator::Cheaper),
+            DistancesArg::Exact => (Choice::Exact, DistanceEstimator::Cheaper),
+            DistancesArg::Sources => (Choice::Estimate, DistanceEstimator::Sources),
+            DistancesArg::Ball => (Choice::Estimate, DistanceEstimator::Ball),
+        };
+        let defaults = plumb::profile::ProfileOptions::default();
+        plumb::profile::ProfileOptions {
+            exact_seconds: self.exact_within,
+            clustering: match self.clustering {
+                ClusteringArg::Auto => Choice::Auto,
+                ClusteringArg::Exact => Choice::Exact,
+                ClusteringArg::Sampled => Choice::Estimate,
+            },
+            distances,
+            distance_estimator,
+            clustering_tolerance: self.clustering_margin,
+            distance_tolerance: self.distance_margin,
+            max_sources: self.max_sources.max(1),
+            ball: plumb::estimate::hyperball::BallOptions {
+                log2_registers: self.ball_registers.trailing_zeros() as u8,
+                repeats: self.ball_runs,
+                level: self.level,
+                seed: self.seed,
+            },
+            level: self.level,
+            seed: self.seed,
+            ..defaults
+        }
+    }
 }
 
 #[derive(ClapArgs, Debug)]
@@ -177,15 +294,10 @@ pub fn run(args: Args) -> Result<ExitCode, Error> {
             input,
             json,
             per_node,
-            exact_budget,
-            seed,
+            plan,
         } => {
+            let opts = plan.options();
             let g = ingest::load(&input.input, &input.options(), &bars)?;
-            let opts = plumb::profile::ProfileOptions {
-                exact_budget,
-                seed,
-                ..Default::default()
-            };
             let (p, table) = plumb::profile::profile(&g, &opts, &bars);
             if let Some(path) = &per_node {
                 plumb::pernode::write(&g, &table, path)?;

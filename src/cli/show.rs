@@ -3,7 +3,7 @@
 use std::fmt::Write as _;
 
 use plumb::Graph;
-use plumb::figure::Method;
+use plumb::figure::{Figure, Method};
 use plumb::input::source::Compression;
 use plumb::intake::{IdKind, InputFormat};
 use plumb::profile::{Distances, Profile};
@@ -183,6 +183,29 @@ fn fixed(v: f64, places: usize) -> String {
     format!("{v:.places$}")
 }
 
+/// A figure as text: exact ones as the value; estimates with their half-width and interval.
+fn fig(f: &Figure, places: usize) -> String {
+    match (&f.method, &f.interval) {
+        (Method::Estimate { .. }, Some(iv)) => {
+            let half = ((iv.high - iv.low) / 2.0).abs();
+            format!(
+                "{} ± {} ({:.0}%: {}–{})",
+                fixed(f.value, places),
+                fixed(half, places),
+                100.0 * iv.level,
+                fixed(iv.low, places),
+                fixed(iv.high, places)
+            )
+        }
+        (Method::Bounds { .. }, Some(iv)) => format!(
+            "between {} and {}",
+            fixed(iv.low, places),
+            fixed(iv.high, places)
+        ),
+        _ => fixed(f.value, places),
+    }
+}
+
 pub fn profile_text(g: &Graph, p: &Profile, per_node: Option<&std::path::Path>) -> String {
     let mut out = intake_text(g).replacen("plumb intake ·", "plumb profile ·", 1);
     let d = &p.degrees;
@@ -238,32 +261,76 @@ pub fn profile_text(g: &Graph, p: &Profile, per_node: Option<&std::path::Path>) 
         ),
     );
     let k = &p.clustering;
-    section(&mut out, "clustering (exact, forward triangle listing)");
-    row(
+    let exact = k.transitivity.is_exact();
+    section(
         &mut out,
-        "triangles",
-        format!(
-            "{} · wedges {} · transitivity {}",
-            count(k.triangles.value as u64),
-            u64::try_from(k.wedges).map_or(k.wedges.to_string(), count),
-            fixed(k.transitivity.value, 6)
-        ),
+        if exact {
+            "clustering (exact, forward triangle listing)"
+        } else {
+            "clustering (estimated by wedge sampling; ± is the interval's half-width)"
+        },
     );
+    if exact {
+        row(
+            &mut out,
+            "triangles",
+            format!(
+                "{} · wedges {} · transitivity {}",
+                count(k.triangles.value as u64),
+                u64::try_from(k.wedges).map_or(k.wedges.to_string(), count),
+                fixed(k.transitivity.value, 6)
+            ),
+        );
+    } else {
+        row(
+            &mut out,
+            "triangles",
+            format!(
+                "{} · transitivity {}",
+                fig(&k.triangles, 0),
+                fig(&k.transitivity, 4)
+            ),
+        );
+        row(
+            &mut out,
+            "",
+            format!(
+                "from {} sampled wedges of {}",
+                count(k.transitivity.sample_size.unwrap_or(0)),
+                u64::try_from(k.wedges).map_or(k.wedges.to_string(), count),
+            ),
+        );
+    }
+    let places = if exact { 6 } else { 4 };
     row(
         &mut out,
         "local",
         format!(
-            "average {} with degree<2 as 0 ({} nodes) · {} over degree≥2 only ({} nodes)",
-            fixed(k.average_zeros.value, 6),
-            count(k.average_zeros.sample_size.unwrap_or(0)),
-            fixed(k.average_deg2.value, 6),
-            count(k.average_deg2.sample_size.unwrap_or(0))
+            "average {} with degree<2 as 0",
+            fig(&k.average_zeros, places),
+        ),
+    );
+    row(
+        &mut out,
+        "",
+        format!(
+            "average {} over degree≥2 only",
+            fig(&k.average_deg2, places)
         ),
     );
     let ck: Vec<String> = k
         .by_degree
         .iter()
-        .map(|b| format!("{}–{}: {:.3}", b.low, b.high, b.mean))
+        .map(|b| match &b.mean.interval {
+            Some(iv) if !b.mean.is_exact() => format!(
+                "{}–{}: {:.3}±{:.3}",
+                b.low,
+                b.high,
+                b.mean.value,
+                (iv.high - iv.low) / 2.0
+            ),
+            _ => format!("{}–{}: {:.3}", b.low, b.high, b.mean.value),
+        })
         .collect();
     row(&mut out, "C(k)", ck.join(" · "));
     section(
@@ -275,7 +342,7 @@ pub fn profile_text(g: &Graph, p: &Profile, per_node: Option<&std::path::Path>) 
         let text = match (&f.method, &f.interval) {
             (Method::Bounds { .. }, Some(iv)) => format!(
                 "between {} and {} for certain (double-sweep bound, then iFUB stopped at the \
-                 --exact-budget after {} BFS runs)",
+                 --exact-within budget after {} BFS runs)",
                 iv.low,
                 iv.high,
                 count(dm.bfs_runs)
@@ -338,36 +405,45 @@ pub fn profile_text(g: &Graph, p: &Profile, per_node: Option<&std::path::Path>) 
                 );
             }
         }
-        Distances::OverBudget {
-            estimated_cost,
-            budget,
-            mean,
-        } => {
-            let iv = mean.interval.expect("an estimate carries an interval");
+        Distances::Estimated(e) => {
+            row(&mut out, "mean", fig(&e.mean, 4));
             row(
                 &mut out,
-                "mean",
+                "effective",
                 format!(
-                    "{} ± {:.4} ({:.0}% interval {:.4}–{:.4}; estimated from BFS at {} sampled \
-                     sources)",
-                    fixed(mean.value, 4),
-                    (iv.high - iv.low) / 2.0,
-                    100.0 * iv.level,
-                    iv.low,
-                    iv.high,
-                    count(mean.sample_size.unwrap_or(0))
+                    "diameter {} (90% of pairs, interpolated, self pairs excluded)",
+                    fig(&e.effective_diameter, 3)
                 ),
             );
+            let dist: Vec<String> = e
+                .distribution
+                .iter()
+                .enumerate()
+                .filter(|(_, f)| f.value >= 0.0005)
+                .map(|(d, f)| format!("{}: {:.1}%", d + 1, 100.0 * f.value))
+                .collect();
             row(
                 &mut out,
-                "",
-                format!(
-                    "exact all-pairs would need about {estimated_cost:.2e} operations, over the \
-                     budget of {budget:.2e} (--exact-budget)"
-                ),
+                "pairs at d",
+                format!("{} (share of pairs, estimated)", dist.join(" · ")),
             );
+            if e.unreachable_pairs_in_graph > 0 {
+                row(
+                    &mut out,
+                    "unreached",
+                    format!(
+                        "{} unordered pairs of the whole graph are in different components",
+                        count(e.unreachable_pairs_in_graph / 2)
+                    ),
+                );
+            }
         }
         Distances::Empty => row(&mut out, "mean", "no pairs: the graph has no edges"),
+    }
+    section(&mut out, "method");
+    for d in &p.plan {
+        row(&mut out, &d.group, &d.method);
+        row(&mut out, "", format!("why: {}", d.reason));
     }
     let parts: Vec<String> = p
         .stages

@@ -83,6 +83,47 @@ pub fn estimate(g: &Csr, sources: usize, level: f64, seed: u64) -> SampledDistan
     summarise(g.node_count() as u64, &search(g, &picked), level, seed)
 }
 
+/// The first stage of a precision-driven estimate: [`PILOT`] sources of a seeded order.
+pub struct Pilot {
+    order: Vec<u32>,
+    per: PerSource,
+    pub summary: SampledDistances,
+}
+
+pub fn pilot(g: &Csr, level: f64, max_sources: usize, seed: u64) -> Pilot {
+    let n = g.node_count();
+    let order = prefix_sample(n as u32, max_sources.max(PILOT), seed);
+    let per = search(g, &order[..PILOT.min(order.len())]);
+    let summary = summarise(n as u64, &per, level, seed);
+    Pilot {
+        order,
+        per,
+        summary,
+    }
+}
+
+impl Pilot {
+    /// Sources the whole estimate will use for ±`relative` (whole batches of 64, at least the
+    /// pilot's, at most the order's).
+    pub fn sources_needed(&self, relative: f64, level: f64) -> usize {
+        let need = sources_for(&self.summary.mean, relative, level, self.summary.nodes);
+        need.div_ceil(64)
+            .saturating_mul(64)
+            .clamp(self.per.len(), self.order.len())
+    }
+
+    /// The second stage: the further sources that make ±`relative`.
+    pub fn finish(mut self, g: &Csr, relative: f64, level: f64, seed: u64) -> SampledDistances {
+        let end = self.sources_needed(relative, level);
+        if end <= self.per.len() {
+            return self.summary;
+        }
+        let more = search(g, &self.order[self.per.len()..end]);
+        self.per.extend(more);
+        summarise(g.node_count() as u64, &self.per, level, seed)
+    }
+}
+
 /// Estimate with enough sources for the mean distance to lie within ±`relative` of its value at
 /// `level` (Stein's two-stage procedure: a pilot of [`PILOT`] sources measures the spread, which
 /// sizes the rest; C. Stein, Ann. Math. Statist. 16, 1945), never more than `max_sources`.
@@ -93,20 +134,7 @@ pub fn estimate_to_precision(
     max_sources: usize,
     seed: u64,
 ) -> SampledDistances {
-    let n = g.node_count();
-    let order = prefix_sample(n as u32, max_sources.max(PILOT), seed);
-    let pilot_len = PILOT.min(order.len());
-    let mut per = search(g, &order[..pilot_len]);
-    let pilot = summarise(n as u64, &per, level, seed);
-    let need = sources_for(&pilot.mean, relative, level, n as u64).min(order.len());
-    if need > per.len() {
-        // Whole batches: a partial last batch costs the same as a full one.
-        let end = need.div_ceil(64).saturating_mul(64).min(order.len());
-        per.extend(search(g, &order[per.len()..end]));
-    } else {
-        return pilot;
-    }
-    summarise(n as u64, &per, level, seed)
+    pilot(g, level, max_sources, seed).finish(g, relative, level, seed)
 }
 
 /// Sources that make the interval half-width `relative` × mean, from a pilot figure.
@@ -120,7 +148,8 @@ pub fn sources_for(pilot: &Figure, relative: f64, level: f64, population: u64) -
     // Undo the pilot's finite-population correction to get the per-source spread.
     let fpc = (1.0 - k as f64 / population.max(1) as f64).max(1e-12);
     let sd = se * (k as f64 / fpc).sqrt();
-    let k0 = (z_for(level) * sd / (relative * pilot.value)).powi(2);
+    // A tenth more than the pilot asks for: the pilot's spread is itself an estimate.
+    let k0 = 1.1 * (z_for(level) * sd / (relative * pilot.value)).powi(2);
     let k = k0 / (1.0 + k0 / population as f64);
     k.ceil() as usize
 }
