@@ -23,10 +23,10 @@ pub struct Rates {
 
 /// Measured with `cargo bench --bench estimate` on the reference machine (2-core virtual Xeon).
 pub const REFERENCE_RATES: Rates = Rates {
-    triangle: 2.0e8,
-    bfs_words: 4.0e8,
-    ball_bytes: 2.0e9,
-    wedges: 4.0e6,
+    triangle: 4.0e8,
+    bfs_words: 2.2e8,
+    ball_bytes: 1.3e9,
+    wedges: 1.0e6,
 };
 
 /// What the planner decided for one figure group, and why.
