@@ -93,7 +93,7 @@ pub fn sweep(g: &Csr) -> Sweep {
 }
 
 /// Work of one bit-parallel batch on `g` reaching at most `levels` levels, in the units of the
-/// exact budget (see [`crate::profile::all_pairs_cost`]).
+/// exact budget (see [`crate::plan::all_pairs_work`]).
 fn batch_cost(g: &Csr, levels: u32) -> f64 {
     (levels as f64 + 1.0) * (g.node_count() as f64 + 2.0 * g.edge_count() as f64)
 }
