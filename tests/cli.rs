@@ -149,3 +149,69 @@ fn profile_with_a_per_node_table() {
     assert_eq!(t["method"]["kind"], "exact");
     assert!((t["value"].as_f64().unwrap() - 0.2556818).abs() < 1e-6);
 }
+
+#[test]
+fn planner_choices_reach_the_report() {
+    // Forced estimates: every estimated figure carries an interval, and the plan says why.
+    let out = plumb(&[
+        "profile",
+        "tests/data/lesmis.csv",
+        "--json",
+        "--clustering",
+        "sampled",
+        "--distances",
+        "sources",
+        "--seed",
+        "4",
+    ]);
+    assert!(
+        out.status.success(),
+        "{}",
+        String::from_utf8_lossy(&out.stderr)
+    );
+    let v: serde_json::Value = serde_json::from_slice(&out.stdout).unwrap();
+    let p = &v["profile"];
+    let t = &p["clustering"]["transitivity"];
+    assert_eq!(t["method"]["kind"], "estimate");
+    let (lo, hi) = (
+        t["interval"]["low"].as_f64().unwrap(),
+        t["interval"]["high"].as_f64().unwrap(),
+    );
+    // The exact run gives the truth (its value is pinned against NetworkX in exact_structure).
+    let exact = plumb(&["profile", "tests/data/lesmis.csv", "--json"]);
+    let e: serde_json::Value = serde_json::from_slice(&exact.stdout).unwrap();
+    let truth = e["profile"]["clustering"]["transitivity"]["value"]
+        .as_f64()
+        .unwrap();
+    assert!(lo <= truth && truth <= hi, "{lo} {hi} {truth}");
+    assert_eq!(p["distances"]["status"], "estimated");
+    assert!(p["distances"]["mean"]["interval"]["low"].is_number());
+    assert_eq!(p["plan"][0]["group"], "clustering");
+    assert!(
+        p["plan"][1]["reason"]
+            .as_str()
+            .unwrap()
+            .contains("chosen by the user")
+    );
+    assert_eq!(
+        e["profile"]["plan"][1]["method"],
+        "exact: all-pairs bit-parallel BFS"
+    );
+    // HyperBall on request, and a text report that names it.
+    let out = plumb(&["profile", "tests/data/lesmis.csv", "--distances", "ball"]);
+    let text = String::from_utf8(out.stdout).unwrap();
+    assert!(
+        text.contains("HyperBall, 64 registers per node × 5 hash seeds"),
+        "{text}"
+    );
+    // Out-of-range options are usage errors (exit 2), named by clap.
+    for bad in [
+        ["--level", "1.5"],
+        ["--ball-registers", "100"],
+        ["--ball-runs", "1"],
+        ["--exact-within", "-3"],
+    ] {
+        let out = plumb(&["profile", "tests/data/lesmis.csv", bad[0], bad[1]]);
+        assert_eq!(out.status.code(), Some(2), "{bad:?}");
+    }
+}
