@@ -460,8 +460,11 @@ fn estimate_distances(
             Decision {
                 group: "distances".into(),
                 method: format!(
-                    "HyperBall, {} registers per node × {} hash seeds",
-                    e.registers, opts.ball.repeats
+                    "HyperBall, {} registers per node × {} hash seeds (each counter ±{:.1}% \
+                     relative standard error)",
+                    e.registers,
+                    opts.ball.repeats,
+                    100.0 * e.counter_rse
                 ),
                 exact_seconds: ap_secs,
                 budget_seconds,
