@@ -32,6 +32,8 @@ pub enum ErrorClass {
     Io,
     /// The work would exceed a resource budget.
     Budget,
+    /// The request itself is impossible (model parameters out of range).
+    Usage,
 }
 
 #[derive(Debug, thiserror::Error)]
@@ -110,6 +112,9 @@ pub enum Error {
 
     #[error("{path}: {problem}")]
     Output { path: PathBuf, problem: String },
+
+    #[error("{problem}")]
+    Parameters { problem: String },
 }
 
 impl Error {
@@ -117,6 +122,7 @@ impl Error {
         match self {
             Error::Io { .. } => ErrorClass::Io,
             Error::OverBudget { .. } => ErrorClass::Budget,
+            Error::Parameters { .. } => ErrorClass::Usage,
             _ => ErrorClass::BadInput,
         }
     }

@@ -27,6 +27,7 @@ pub mod pernode;
 pub mod plan;
 pub mod profile;
 pub mod progress;
+pub mod randomize;
 pub mod sketch;
 pub mod slab;
 pub mod store;

@@ -100,3 +100,172 @@ pub fn write_zstd_frames(dest: &Path, data: &[u8], level: i32, frame_bytes: usiz
     out.commit()?;
     Ok(total)
 }
+
+/// Frames compressed together per parallel batch by [`EdgeWriter`].
+const BATCH_FRAMES: usize = 8;
+
+/// Streams edges as `u<TAB>v` lines to a file, atomically: plain text, or independent zstd
+/// frames (compressed a batch at a time in parallel) when `zstd_level` is given. Holds at most
+/// one batch of text, however many edges pass through.
+pub struct EdgeWriter {
+    out: AtomicFile,
+    zstd_level: Option<i32>,
+    frame_bytes: usize,
+    pending: Vec<Vec<u8>>,
+    current: Vec<u8>,
+    pub edges: u64,
+    pub bytes_out: u64,
+    error: Option<std::io::Error>,
+}
+
+impl EdgeWriter {
+    /// zstd when `dest` ends in `.zst` (level 3), else plain.
+    pub fn create(dest: &Path) -> Result<Self> {
+        let zstd = dest.extension().is_some_and(|e| e == "zst");
+        Ok(EdgeWriter {
+            out: AtomicFile::create(dest)?,
+            zstd_level: zstd.then_some(3),
+            frame_bytes: 4 << 20,
+            pending: Vec::new(),
+            current: Vec::with_capacity(4 << 20),
+            edges: 0,
+            bytes_out: 0,
+            error: None,
+        })
+    }
+
+    /// Write a comment line (`# …`) that the readers skip.
+    pub fn comment(&mut self, text: &str) {
+        for line in text.lines() {
+            self.current.extend_from_slice(b"# ");
+            self.current.extend_from_slice(line.as_bytes());
+            self.current.push(b'\n');
+        }
+    }
+
+    pub fn edge(&mut self, a: u32, b: u32) {
+        self.labelled(itoa_u32(a).as_bytes(), itoa_u32(b).as_bytes());
+    }
+
+    /// An edge between two nodes named by their original ids.
+    pub fn labelled(&mut self, a: &[u8], b: &[u8]) {
+        self.current.extend_from_slice(a);
+        self.current.push(b'\t');
+        self.current.extend_from_slice(b);
+        self.current.push(b'\n');
+        self.edges += 1;
+        if self.current.len() >= self.frame_bytes {
+            let full = std::mem::replace(&mut self.current, Vec::with_capacity(self.frame_bytes));
+            self.pending.push(full);
+            if self.pending.len() >= BATCH_FRAMES {
+                self.drain();
+            }
+        }
+    }
+
+    fn drain(&mut self) {
+        use rayon::prelude::*;
+        if self.error.is_some() {
+            self.pending.clear();
+            return;
+        }
+        let chunks = std::mem::take(&mut self.pending);
+        let encoded: Vec<std::io::Result<Vec<u8>>> = match self.zstd_level {
+            Some(level) => chunks
+                .into_par_iter()
+                .map(|c| {
+                    let mut z = zstd::bulk::Compressor::new(level)?;
+                    z.include_checksum(true)?;
+                    z.compress(&c)
+                })
+                .collect(),
+            None => chunks.into_iter().map(Ok).collect(),
+        };
+        for e in encoded {
+            let r = e.and_then(|bytes| {
+                self.out.write_all(&bytes)?;
+                self.bytes_out += bytes.len() as u64;
+                Ok(())
+            });
+            if let Err(e) = r {
+                self.error = Some(e);
+                return;
+            }
+        }
+    }
+
+    /// Write what is left and move the file into place.
+    pub fn finish(mut self) -> Result<(u64, u64)> {
+        if !self.current.is_empty() {
+            let last = std::mem::take(&mut self.current);
+            self.pending.push(last);
+        }
+        self.drain();
+        if let Some(e) = self.error.take() {
+            return Err(self.out.fail(e));
+        }
+        let (edges, bytes) = (self.edges, self.bytes_out);
+        self.out.commit()?;
+        Ok((edges, bytes))
+    }
+}
+
+/// Decimal digits of `x` without allocation through `fmt`.
+fn itoa_u32(mut x: u32) -> SmallDigits {
+    let mut d = SmallDigits {
+        buf: [0; 10],
+        start: 10,
+    };
+    loop {
+        d.start -= 1;
+        d.buf[d.start] = b'0' + (x % 10) as u8;
+        x /= 10;
+        if x == 0 {
+            return d;
+        }
+    }
+}
+
+struct SmallDigits {
+    buf: [u8; 10],
+    start: usize,
+}
+
+impl SmallDigits {
+    fn as_bytes(&self) -> &[u8] {
+        &self.buf[self.start..]
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn edge_writer_round_trips_plain_and_zstd() {
+        let dir = tempfile::tempdir().unwrap();
+        for name in ["e.tsv", "e.tsv.zst"] {
+            let path = dir.path().join(name);
+            let mut w = EdgeWriter::create(&path).unwrap();
+            w.frame_bytes = 64; // many frames and batches
+            w.comment("test\nsecond line");
+            for i in 0..1000u32 {
+                w.edge(i, i.wrapping_mul(2_654_435_761) % 4_000_000_000);
+            }
+            let (edges, _) = w.finish().unwrap();
+            assert_eq!(edges, 1000);
+            let raw = std::fs::read(&path).unwrap();
+            let text = if name.ends_with(".zst") {
+                zstd::decode_all(&raw[..]).unwrap()
+            } else {
+                raw
+            };
+            let text = String::from_utf8(text).unwrap();
+            let lines: Vec<&str> = text.lines().collect();
+            assert_eq!(lines[0], "# test");
+            assert_eq!(lines[2], "0\t0");
+            assert_eq!(lines[3], format!("1\t{}", 2_654_435_761u32));
+            assert_eq!(lines.len(), 1002);
+        }
+    }
+}

@@ -73,6 +73,18 @@ enum Command {
         /// A store file written by `plumb pack`.
         store: PathBuf,
     },
+    /// Write a seeded random or lattice graph as an edge list (plain, or zstd when the name
+    /// ends in .zst), streaming: the same seed gives a byte-identical file.
+    Synth {
+        #[command(subcommand)]
+        model: SynthModel,
+        /// Where to write the edge list.
+        #[arg(short = 'o', long = "out", value_name = "FILE", global = true)]
+        out: Option<PathBuf>,
+        /// Seed of every random choice.
+        #[arg(long, default_value_t = 1, global = true)]
+        seed: u64,
+    },
     /// Rebuild the shipped demo data (seeded; byte-identical on every machine).
     DemoData {
         /// Folder to write into.
@@ -83,6 +95,62 @@ enum Command {
         /// How many weekly exports to write.
         #[arg(long, default_value_t = 1)]
         weeks: u32,
+    },
+}
+
+#[derive(Subcommand, Debug)]
+enum SynthModel {
+    /// Ring lattice: each node joined to its K/2 nearest neighbours on each side.
+    Lattice {
+        #[arg(long, value_name = "N")]
+        nodes: u32,
+        /// Degree K (even).
+        #[arg(long, value_name = "K")]
+        degree: u32,
+    },
+    /// Watts–Strogatz: the ring lattice with each edge's far end rewired with probability P.
+    Ws {
+        #[arg(long, value_name = "N")]
+        nodes: u32,
+        #[arg(long, value_name = "K")]
+        degree: u32,
+        #[arg(long, value_name = "P")]
+        rewire: f64,
+    },
+    /// Erdős–Rényi with exactly M edges.
+    Gnm {
+        #[arg(long, value_name = "N")]
+        nodes: u32,
+        #[arg(long, value_name = "M")]
+        edges: u64,
+    },
+    /// Erdős–Rényi with each pair joined with probability P (linear time).
+    Gnp {
+        #[arg(long, value_name = "N")]
+        nodes: u32,
+        #[arg(long, value_name = "P")]
+        prob: f64,
+    },
+    /// Preferential attachment: each new node attaches D edges in proportion to degree.
+    Attach {
+        #[arg(long, value_name = "N")]
+        nodes: u32,
+        #[arg(long, value_name = "D")]
+        per_node: u32,
+    },
+    /// Degree-preserving randomisation of a graph by double-edge swaps (original ids kept).
+    Shuffle {
+        #[command(flatten)]
+        input: InputArgs,
+        /// Attempted swaps per edge.
+        #[arg(long, value_name = "Q", default_value_t = 10.0)]
+        swaps_per_edge: f64,
+    },
+    /// Configuration model with the degree sequence of a graph (original ids kept; self-loops
+    /// and repeated pairs erased and counted).
+    Config {
+        #[command(flatten)]
+        input: InputArgs,
     },
 }
 
@@ -278,7 +346,125 @@ pub fn exit_code(e: &Error) -> ExitCode {
         ErrorClass::BadInput => ExitCode::from(EXIT_BAD_INPUT),
         ErrorClass::Io => ExitCode::from(EXIT_IO),
         ErrorClass::Budget => ExitCode::from(EXIT_BUDGET),
+        ErrorClass::Usage => ExitCode::from(2),
     }
+}
+
+fn synth(
+    model: SynthModel,
+    out: &std::path::Path,
+    seed: u64,
+    bars: &bars::Bars,
+) -> Result<(), Error> {
+    use plumb::generate::Model;
+    let t = std::time::Instant::now();
+    let mut w = plumb::outfile::EdgeWriter::create(out)?;
+    let bad = |problem: String| Error::Parameters { problem };
+    let (what, nodes, extra) = match model {
+        SynthModel::Shuffle {
+            input,
+            swaps_per_edge,
+        } => {
+            if !(swaps_per_edge >= 0.0) {
+                return Err(bad("--swaps-per-edge must be >= 0".into()));
+            }
+            let g = ingest::load(&input.input, &input.options(), bars)?;
+            let (r, rep) = plumb::randomize::degree_preserving(&g.csr, swaps_per_edge, seed);
+            let what = format!(
+                "degree-preserving randomisation of {} by double-edge swaps (Maslov & Sneppen \
+                 2002), seed {seed}",
+                input.input.display()
+            );
+            w.comment(&format!("plumb synth: {what}"));
+            for (a, b) in plumb::randomize::edge_list(&r) {
+                w.labelled(&g.ids.label_bytes(a), &g.ids.label_bytes(b));
+            }
+            let extra = format!(
+                "{} of {} attempted swaps made (the rest would have made a loop or a repeat)",
+                show::count(rep.accepted),
+                show::count(rep.attempted)
+            );
+            (what, g.node_count() as u64, extra)
+        }
+        SynthModel::Config { input } => {
+            let g = ingest::load(&input.input, &input.options(), bars)?;
+            let degrees: Vec<u32> = (0..g.node_count() as u32)
+                .map(|v| g.csr.degree(v))
+                .collect();
+            let what = format!(
+                "configuration model with the degrees of {}, seed {seed}",
+                input.input.display()
+            );
+            w.comment(&format!("plumb synth: {what}"));
+            let rep = plumb::randomize::configuration(&degrees, seed, &mut |a, b| {
+                w.labelled(&g.ids.label_bytes(a), &g.ids.label_bytes(b))
+            })
+            .map_err(bad)?;
+            let extra = format!(
+                "{} self-loops and {} repeated pairs erased",
+                show::count(rep.loops_erased),
+                show::count(rep.repeats_erased)
+            );
+            (what, g.node_count() as u64, extra)
+        }
+        other => {
+            let m = match other {
+                SynthModel::Lattice { nodes, degree } => Model::Lattice {
+                    n: nodes,
+                    k: degree,
+                },
+                SynthModel::Ws {
+                    nodes,
+                    degree,
+                    rewire,
+                } => Model::WattsStrogatz {
+                    n: nodes,
+                    k: degree,
+                    p: rewire,
+                },
+                SynthModel::Gnm { nodes, edges } => Model::Gnm { n: nodes, m: edges },
+                SynthModel::Gnp { nodes, prob } => Model::Gnp { n: nodes, p: prob },
+                SynthModel::Attach { nodes, per_node } => Model::Preferential {
+                    n: nodes,
+                    d: per_node,
+                },
+                _ => unreachable!("handled above"),
+            };
+            m.validate().map_err(bad)?;
+            let what = format!("{}, seed {seed}", m.describe());
+            w.comment(&format!("plumb synth: {what}"));
+            let n = m.nodes() as usize;
+            let mut touched = vec![false; n];
+            plumb::generate::stream(&m, seed, &mut |a, b| {
+                touched[a as usize] = true;
+                touched[b as usize] = true;
+                w.edge(a, b)
+            })
+            .map_err(bad)?;
+            let lonely = touched.iter().filter(|&&t| !t).count();
+            let extra = if lonely == 0 {
+                "every node has an edge".to_string()
+            } else {
+                format!(
+                    "{} nodes have no edge and so do not appear in the edge list",
+                    show::count(lonely as u64)
+                )
+            };
+            (what, n as u64, extra)
+        }
+    };
+    let (edges, bytes) = w.finish()?;
+    let secs = t.elapsed().as_secs_f64();
+    println!("wrote {}: {what}", out.display());
+    println!(
+        "  {} nodes · {} edges · {} in {:.2} s ({:.1} M edges/s) · {extra}",
+        show::count(nodes),
+        show::count(edges),
+        show::bytes(bytes),
+        secs,
+        edges as f64 / secs.max(1e-9) / 1e6
+    );
+    Ok(())
 }
 
 pub fn run(args: Args) -> Result<ExitCode, Error> {
@@ -348,6 +534,12 @@ pub fn run(args: Args) -> Result<ExitCode, Error> {
                 opened,
                 t.elapsed().as_secs_f64() - opened
             );
+        }
+        Command::Synth { model, out, seed } => {
+            let out = out.ok_or_else(|| Error::Parameters {
+                problem: "synth needs an output file: -o FILE".into(),
+            })?;
+            synth(model, &out, seed, &bars)?;
         }
         Command::DemoData { out, seed, weeks } => {
             std::fs::create_dir_all(&out).map_err(|e| Error::Io {
