@@ -365,7 +365,7 @@ fn synth(
             input,
             swaps_per_edge,
         } => {
-            if !(swaps_per_edge >= 0.0) {
+            if swaps_per_edge.is_nan() || swaps_per_edge < 0.0 {
                 return Err(bad("--swaps-per-edge must be >= 0".into()));
             }
             let g = ingest::load(&input.input, &input.options(), bars)?;
