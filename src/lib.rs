@@ -30,6 +30,7 @@ pub mod progress;
 pub mod randomize;
 pub mod sketch;
 pub mod slab;
+pub mod smallworld;
 pub mod store;
 pub mod triangles;
 

@@ -22,6 +22,7 @@ use crate::plan::{
     bfs_work, seconds,
 };
 use crate::progress::{Progress, Unit};
+use crate::smallworld::{self, Observed, SmallWorld};
 use crate::triangles;
 
 #[derive(Debug, Clone)]
@@ -48,6 +49,11 @@ pub struct ProfileOptions {
     pub level: f64,
     /// Seed of every random choice.
     pub seed: u64,
+    /// Sampled reference graphs of each kind (random G(n,m), degree-preserving) for the
+    /// small-world comparison; `None` = as many as fit the time budget (4 or none).
+    pub reference_graphs: Option<usize>,
+    /// Attempted double-edge swaps per edge when making degree-preserving references.
+    pub swaps_per_edge: f64,
     /// Threads the cost predictions assume (default: the pool's).
     pub threads: usize,
     pub rates: Rates,
@@ -67,6 +73,8 @@ impl Default for ProfileOptions {
             ball: BallOptions::default(),
             level: 0.95,
             seed: 1,
+            reference_graphs: None,
+            swaps_per_edge: 2.0,
             threads: rayon::current_num_threads(),
             rates: REFERENCE_RATES,
         }
@@ -126,6 +134,8 @@ pub struct Profile {
     pub distance_node_set: String,
     pub diameter: Option<DiameterFigures>,
     pub distances: Distances,
+    /// sigma, omega and small-world propensity against random and lattice references.
+    pub small_world: Option<SmallWorld>,
     /// Which method ran for each figure group, and why.
     pub plan: Vec<Decision>,
     pub stages: Vec<Stage>,
@@ -288,8 +298,8 @@ pub fn profile(g: &Graph, opts: &ProfileOptions, progress: &dyn Progress) -> (Pr
             .sum();
         (all - within) as u64
     };
-    let (diameter, distances) = if giant.len() < 2 {
-        (None, Distances::Empty)
+    let (diameter, distances, sub) = if giant.len() < 2 {
+        (None, Distances::Empty, None)
     } else {
         let sub = components::induced(csr, &giant);
         let (sn, sm) = (sub.node_count() as u64, sub.edge_count());
@@ -366,7 +376,24 @@ pub fn profile(g: &Graph, opts: &ProfileOptions, progress: &dyn Progress) -> (Pr
             }
             _ => unreachable!("iFUB runs whenever all-pairs does not"),
         };
-        (Some(figures), dist)
+        (Some(figures), dist, Some(sub))
+    };
+    let small_world = match (&sub, &distances) {
+        (Some(sub), Distances::Exact(_) | Distances::Estimated(_)) if sub.edge_count() > 0 => {
+            let observed = observed_on_giant(
+                sub,
+                &giant,
+                n,
+                &clustering,
+                tri_per_node.as_deref().zip(local.as_deref()),
+                &distances,
+                opts,
+            );
+            Some(small_world(
+                sub, observed, opts, &mut clock, &mut plan, &node_set,
+            ))
+        }
+        _ => None,
     };
     let profile = Profile {
         intake: g.intake.clone(),
@@ -376,6 +403,7 @@ pub fn profile(g: &Graph, opts: &ProfileOptions, progress: &dyn Progress) -> (Pr
         distance_node_set: node_set,
         diameter,
         distances,
+        small_world,
         plan,
         stages: clock.stages,
     };
@@ -521,4 +549,213 @@ fn estimate_distances(
             },
         )
     }
+}
+
+/// The observed figures of the giant component `sub` (nodes `giant` of the whole graph).
+fn observed_on_giant(
+    sub: &Csr,
+    giant: &[u32],
+    whole_n: usize,
+    whole: &ClusteringStats,
+    per_node: Option<(&[u64], &[f64])>,
+    distances: &Distances,
+    opts: &ProfileOptions,
+) -> Observed {
+    let n = sub.node_count();
+    let degree_sum: f64 = (0..n as u32).map(|v| sub.degree(v) as f64).sum();
+    let square_sum: f64 = (0..n as u32).map(|v| (sub.degree(v) as f64).powi(2)).sum();
+    let connected = giant.len() == whole_n;
+    let (transitivity, average_clustering) = match per_node {
+        _ if connected => (whole.transitivity.clone(), whole.average_zeros.clone()),
+        Some((t, c)) => {
+            // Triangles never cross components, so the whole graph's per-node counts serve.
+            let closed: u64 = giant.iter().map(|&v| t[v as usize]).sum();
+            let wedges = clustering::wedge_total(sub);
+            let tr = if wedges == 0 {
+                0.0
+            } else {
+                closed as f64 / wedges as f64
+            };
+            let avg = crate::numeric::det_sum(giant.len(), |i| c[giant[i] as usize]) / n as f64;
+            const ALG: &str = "forward triangle listing, on the giant component";
+            (
+                Figure::exact(tr, ALG),
+                Figure::exact_over(avg, ALG, n as u64),
+            )
+        }
+        _ => {
+            let s = wedges::sampled_stats(
+                sub,
+                opts.clustering_tolerance,
+                opts.bin_tolerance,
+                opts.level,
+                opts.seed,
+            );
+            (s.transitivity, s.average_zeros)
+        }
+    };
+    let mean_distance = match distances {
+        Distances::Exact(d) => d.mean.clone(),
+        Distances::Estimated(d) => d.mean.clone(),
+        Distances::Empty => Figure::exact(0.0, "no pairs"),
+    };
+    Observed {
+        nodes: n as u64,
+        edges: sub.edge_count(),
+        mean_degree: degree_sum / n as f64,
+        second_moment: square_sum / n as f64,
+        transitivity,
+        average_clustering,
+        mean_distance,
+    }
+}
+
+/// Transitivity, average clustering and mean distance of one connected reference graph, exact
+/// when cheap, else estimated to the profile's margins (its giant component for the distance).
+fn measure_reference(g: &Csr, opts: &ProfileOptions, seed: u64) -> (f64, f64, f64) {
+    let threads = opts.threads;
+    let tri_secs = seconds(plan::triangle_work(g), opts.rates.triangle, threads);
+    let (t, c) = if tri_secs <= opts.exact_seconds {
+        let tri = triangles::count(g);
+        let local = clustering::local(g, &tri);
+        let s = clustering::stats(g, &tri, &local);
+        (s.transitivity.value, s.average_zeros.value)
+    } else {
+        let s = wedges::sampled_stats(g, opts.clustering_tolerance, 1.0, opts.level, seed);
+        (s.transitivity.value, s.average_zeros.value)
+    };
+    let comps = components::components(g);
+    let sub = components::induced(g, &comps.giant_nodes());
+    let (sn, sm) = (sub.node_count() as u64, sub.edge_count());
+    let levels = diameter::sweep(&sub).lower as u64;
+    let ap_secs = seconds(
+        all_pairs_work(sn, sm, levels),
+        opts.rates.bfs_words,
+        threads,
+    );
+    // A reference's own measurement error joins the spread across references, so a sampled
+    // estimate serves unless exact is nearly free.
+    let l = if ap_secs <= 0.05 * opts.exact_seconds {
+        let ap = distances::all_pairs(&sub);
+        DistanceStats::from_all_pairs(&ap, "", 0).mean.value
+    } else {
+        sampled::estimate_to_precision(
+            &sub,
+            opts.distance_tolerance,
+            opts.level,
+            opts.max_sources,
+            seed,
+        )
+        .mean
+        .value
+    };
+    (t, c, l)
+}
+
+/// The small-world comparison of the giant component, with sampled references when asked for
+/// or when they fit the time budget.
+fn small_world(
+    sub: &Csr,
+    o: Observed,
+    opts: &ProfileOptions,
+    clock: &mut Clock,
+    plan: &mut Vec<Decision>,
+    node_set: &str,
+) -> SmallWorld {
+    // One reference costs its generation, its clustering (as the input's did) and its distances
+    // from sampled sources (about 256, over about twice the mean distance in levels).
+    let clustering_secs: f64 = clock
+        .stages
+        .iter()
+        .filter(|s| s.name.contains("clustering") || s.name == "triangles")
+        .map(|s| s.seconds)
+        .sum();
+    let (n, m) = (sub.node_count() as u64, sub.edge_count());
+    let levels = (2.0 * o.mean_distance.value).ceil() as u64 + 2;
+    let per_reference = clustering_secs
+        + seconds(
+            bfs_work(256, n, m, levels),
+            opts.rates.bfs_words,
+            opts.threads,
+        )
+        + m as f64 * (1.0 + opts.swaps_per_edge) / 5e6;
+    let (r, reason) = match opts.reference_graphs {
+        Some(r) => (r, "chosen by the user".to_string()),
+        None => {
+            let predicted = 2.0 * 4.0 * per_reference;
+            if predicted <= opts.exact_seconds {
+                (
+                    4,
+                    format!(
+                        "4 of each kind predicted {}, within the {} budget",
+                        secs(predicted),
+                        secs(opts.exact_seconds)
+                    ),
+                )
+            } else {
+                (
+                    0,
+                    format!(
+                        "4 sampled references of each kind predicted {}, over the {} budget: \
+                         analytic references only",
+                        secs(predicted),
+                        secs(opts.exact_seconds)
+                    ),
+                )
+            }
+        }
+    };
+    let mut references = Vec::new();
+    if r > 0 {
+        clock.start("reference graphs");
+        let random: Vec<(f64, f64, f64)> = (0..r as u64)
+            .map(|i| {
+                let seed = opts.seed.wrapping_add(1000 + i);
+                let g = crate::generate::gnm(n as u32, m, seed);
+                measure_reference(&g, opts, seed)
+            })
+            .collect();
+        let shuffled: Vec<(f64, f64, f64)> = (0..r as u64)
+            .map(|i| {
+                let seed = opts.seed.wrapping_add(2000 + i);
+                let (g, _) = crate::randomize::degree_preserving(sub, opts.swaps_per_edge, seed);
+                measure_reference(&g, opts, seed)
+            })
+            .collect();
+        clock.done("reference graphs");
+        references.push(smallworld::empirical_reference(
+            &format!("random, {r} sampled G(n, m) graphs"),
+            "Erdős–Rényi graphs with the same n and m, measured like the input (distances on \
+             each one's giant component)",
+            &random,
+            opts.level,
+        ));
+        references.push(smallworld::empirical_reference(
+            &format!("random with the same degrees, {r} sampled graphs"),
+            &format!(
+                "double-edge swaps of the input, {} attempted per edge (Maslov & Sneppen 2002)",
+                opts.swaps_per_edge
+            ),
+            &shuffled,
+            opts.level,
+        ));
+    }
+    references.extend(smallworld::analytic_references(&o));
+    plan.push(Decision {
+        group: "references".into(),
+        method: if r > 0 {
+            format!("{r} sampled graphs of each kind, plus the analytic references")
+        } else {
+            "analytic references".into()
+        },
+        exact_seconds: 0.0,
+        budget_seconds: opts
+            .reference_graphs
+            .is_none()
+            .then_some(opts.exact_seconds),
+        reason,
+    });
+    let mut sw = smallworld::compare(&o, references, opts.level, opts.seed);
+    sw.node_set = node_set.to_string();
+    sw
 }

@@ -188,6 +188,14 @@ struct PlanArgs {
     /// HyperBall runs with independent hash seeds (their spread gives the intervals).
     #[arg(long, value_name = "N", default_value_t = 5, value_parser = clap::value_parser!(u32).range(2..))]
     ball_runs: u32,
+    /// Sampled reference graphs of each kind (random with the same n and m; random with the
+    /// same degrees) for the small-world comparison (default: 4 when they fit the budget,
+    /// else none; analytic references are always given).
+    #[arg(long, value_name = "N")]
+    reference_graphs: Option<usize>,
+    /// Attempted double-edge swaps per edge for the degree-preserving references.
+    #[arg(long, value_name = "Q", default_value_t = 2.0)]
+    swaps_per_edge: f64,
     /// Seed of every random choice (same seed, input and methods: same output on any thread
     /// count).
     #[arg(long, default_value_t = 1)]
@@ -271,6 +279,8 @@ impl PlanArgs {
             },
             level: self.level,
             seed: self.seed,
+            reference_graphs: self.reference_graphs,
+            swaps_per_edge: self.swaps_per_edge.max(0.0),
             ..defaults
         }
     }

@@ -183,6 +183,23 @@ fn fixed(v: f64, places: usize) -> String {
     format!("{v:.places$}")
 }
 
+/// Break `text` into lines of at most `width` characters at spaces.
+fn wrap(text: &str, width: usize) -> Vec<String> {
+    let mut lines = vec![String::new()];
+    for word in text.split(' ') {
+        let last = lines.last_mut().expect("one line at least");
+        if !last.is_empty() && last.chars().count() + 1 + word.chars().count() > width {
+            lines.push(word.to_string());
+        } else {
+            if !last.is_empty() {
+                last.push(' ');
+            }
+            last.push_str(word);
+        }
+    }
+    lines
+}
+
 /// A figure as text: exact ones as the value; estimates with their half-width and interval.
 fn fig(f: &Figure, places: usize) -> String {
     match (&f.method, &f.interval) {
@@ -439,6 +456,45 @@ pub fn profile_text(g: &Graph, p: &Profile, per_node: Option<&std::path::Path>) 
             }
         }
         Distances::Empty => row(&mut out, "mean", "no pairs: the graph has no edges"),
+    }
+    if let Some(sw) = &p.small_world {
+        section(
+            &mut out,
+            &format!("small-world comparison on the {}", sw.node_set),
+        );
+        for r in &sw.references {
+            let part = |label: &str, f: &Option<Figure>, places: usize| {
+                f.as_ref().map(|f| format!("{label} {}", fig(f, places)))
+            };
+            let parts: Vec<String> = [
+                part("C", &r.transitivity, 4),
+                part("avg C", &r.average_clustering, 4),
+                part("L", &r.mean_distance, 3),
+            ]
+            .into_iter()
+            .flatten()
+            .collect();
+            row(&mut out, "reference", format!("{}:", r.name));
+            row(&mut out, "", parts.join(" · "));
+        }
+        for c in &sw.coefficients {
+            row(
+                &mut out,
+                "with",
+                format!("{} against {}:", c.clustering, c.random_reference),
+            );
+            row(&mut out, "sigma", fig(&c.sigma, 3));
+            row(&mut out, "omega", fig(&c.omega, 3));
+            row(&mut out, "propensity", fig(&c.propensity, 3));
+            for (i, v) in c.verdicts.iter().enumerate() {
+                row(&mut out, if i == 0 { "reading" } else { "" }, v);
+            }
+        }
+        for c in &sw.caveats {
+            for (i, line) in wrap(c, 86).iter().enumerate() {
+                row(&mut out, if i == 0 { "note" } else { "" }, line);
+            }
+        }
     }
     section(&mut out, "method");
     for d in &p.plan {
