@@ -32,6 +32,7 @@ pub mod sketch;
 pub mod slab;
 pub mod smallworld;
 pub mod store;
+pub mod sweep;
 pub mod triangles;
 
 pub use error::{Error, Result};

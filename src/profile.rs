@@ -612,7 +612,7 @@ fn observed_on_giant(
 
 /// Transitivity, average clustering and mean distance of one connected reference graph, exact
 /// when cheap, else estimated to the profile's margins (its giant component for the distance).
-fn measure_reference(g: &Csr, opts: &ProfileOptions, seed: u64) -> (f64, f64, f64) {
+pub fn measure_reference(g: &Csr, opts: &ProfileOptions, seed: u64) -> (f64, f64, f64) {
     let threads = opts.threads;
     let tri_secs = seconds(plan::triangle_work(g), opts.rates.triangle, threads);
     let (t, c) = if tri_secs <= opts.exact_seconds {

@@ -215,3 +215,38 @@ fn planner_choices_reach_the_report() {
         assert_eq!(out.status.code(), Some(2), "{bad:?}");
     }
 }
+
+#[test]
+fn sweep_and_synth_as_a_user_runs_them() {
+    let out = plumb(&[
+        "sweep", "--nodes", "500", "--degree", "6", "--p", "0,0.1,1", "--graphs", "2",
+    ]);
+    assert!(
+        out.status.success(),
+        "{}",
+        String::from_utf8_lossy(&out.stderr)
+    );
+    let text = String::from_utf8(out.stdout).unwrap();
+    // C(0) = 3(k-2)/(4(k-1)) = 0.6 for k = 6 (Watts & Strogatz 1998).
+    assert!(text.contains("C(0) = 0.600000"), "{text}");
+    assert_eq!(text.lines().count(), 6, "{text}");
+    let out = plumb(&["sweep", "--p", "2"]);
+    assert_eq!(
+        out.status.code(),
+        Some(2),
+        "p outside [0, 1] is a usage error"
+    );
+    let out = plumb(&[
+        "synth",
+        "gnm",
+        "--nodes",
+        "10",
+        "--edges",
+        "100",
+        "-o",
+        "/dev/null",
+    ]);
+    assert_eq!(out.status.code(), Some(2));
+    let err = String::from_utf8(out.stderr).unwrap();
+    assert!(err.contains("at most 45 edges"), "{err}");
+}

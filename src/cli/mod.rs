@@ -85,6 +85,31 @@ enum Command {
         #[arg(long, default_value_t = 1, global = true)]
         seed: u64,
     },
+    /// Fit the small-world model: Watts–Strogatz graphs of one size and degree over a list of
+    /// rewiring probabilities, with C(p)/C(0) and L(p)/L(0) and their intervals.
+    Sweep {
+        #[arg(long, value_name = "N", default_value_t = 1000)]
+        nodes: u32,
+        /// Lattice degree K (even).
+        #[arg(long, value_name = "K", default_value_t = 10)]
+        degree: u32,
+        /// Rewiring probabilities, comma-separated.
+        #[arg(
+            long,
+            value_name = "P,P,…",
+            value_delimiter = ',',
+            default_value = "0,0.0001,0.0003,0.001,0.003,0.01,0.03,0.1,0.3,1"
+        )]
+        p: Vec<f64>,
+        /// Seeded graphs per probability.
+        #[arg(long, value_name = "R", default_value_t = 5)]
+        graphs: usize,
+        /// Print the sweep as JSON instead of a table.
+        #[arg(long)]
+        json: bool,
+        #[arg(long, default_value_t = 1)]
+        seed: u64,
+    },
     /// Rebuild the shipped demo data (seeded; byte-identical on every machine).
     DemoData {
         /// Folder to write into.
@@ -152,6 +177,9 @@ enum SynthModel {
         #[command(flatten)]
         input: InputArgs,
     },
+    /// (internal) A generator model with its parameters gathered.
+    #[command(skip)]
+    Generated(plumb::generate::Model),
 }
 
 /// How each figure group is computed: exact within a time budget, or estimated to a margin.
@@ -368,8 +396,36 @@ fn synth(
 ) -> Result<(), Error> {
     use plumb::generate::Model;
     let t = std::time::Instant::now();
-    let mut w = plumb::outfile::EdgeWriter::create(out)?;
     let bad = |problem: String| Error::Parameters { problem };
+    let model = match model {
+        SynthModel::Lattice { nodes, degree } => SynthModel::Generated(Model::Lattice {
+            n: nodes,
+            k: degree,
+        }),
+        SynthModel::Ws {
+            nodes,
+            degree,
+            rewire,
+        } => SynthModel::Generated(Model::WattsStrogatz {
+            n: nodes,
+            k: degree,
+            p: rewire,
+        }),
+        SynthModel::Gnm { nodes, edges } => {
+            SynthModel::Generated(Model::Gnm { n: nodes, m: edges })
+        }
+        SynthModel::Gnp { nodes, prob } => SynthModel::Generated(Model::Gnp { n: nodes, p: prob }),
+        SynthModel::Attach { nodes, per_node } => SynthModel::Generated(Model::Preferential {
+            n: nodes,
+            d: per_node,
+        }),
+        other => other,
+    };
+    // Refuse impossible parameters before touching the output.
+    if let SynthModel::Generated(m) = &model {
+        m.validate().map_err(bad)?;
+    }
+    let mut w = plumb::outfile::EdgeWriter::create(out)?;
     let (what, nodes, extra) = match model {
         SynthModel::Shuffle {
             input,
@@ -417,30 +473,7 @@ fn synth(
             );
             (what, g.node_count() as u64, extra)
         }
-        other => {
-            let m = match other {
-                SynthModel::Lattice { nodes, degree } => Model::Lattice {
-                    n: nodes,
-                    k: degree,
-                },
-                SynthModel::Ws {
-                    nodes,
-                    degree,
-                    rewire,
-                } => Model::WattsStrogatz {
-                    n: nodes,
-                    k: degree,
-                    p: rewire,
-                },
-                SynthModel::Gnm { nodes, edges } => Model::Gnm { n: nodes, m: edges },
-                SynthModel::Gnp { nodes, prob } => Model::Gnp { n: nodes, p: prob },
-                SynthModel::Attach { nodes, per_node } => Model::Preferential {
-                    n: nodes,
-                    d: per_node,
-                },
-                _ => unreachable!("handled above"),
-            };
-            m.validate().map_err(bad)?;
+        SynthModel::Generated(m) => {
             let what = format!("{}, seed {seed}", m.describe());
             w.comment(&format!("plumb synth: {what}"));
             let n = m.nodes() as usize;
@@ -462,6 +495,7 @@ fn synth(
             };
             (what, n as u64, extra)
         }
+        _ => unreachable!("generator models were converted above"),
     };
     let (edges, bytes) = w.finish()?;
     let secs = t.elapsed().as_secs_f64();
@@ -550,6 +584,34 @@ pub fn run(args: Args) -> Result<ExitCode, Error> {
                 problem: "synth needs an output file: -o FILE".into(),
             })?;
             synth(model, &out, seed, &bars)?;
+        }
+        Command::Sweep {
+            nodes,
+            degree,
+            p,
+            graphs,
+            json,
+            seed,
+        } => {
+            let opts = plumb::profile::ProfileOptions {
+                seed,
+                ..Default::default()
+            };
+            use plumb::progress::{Progress, Unit};
+            bars.stage("sweep", Some(p.len() as u64), Unit::Items);
+            let sweep = plumb::sweep::watts_strogatz(nodes, degree, &p, graphs, &opts, &mut |_| {
+                bars.advance(1)
+            })
+            .map_err(|problem| Error::Parameters { problem })?;
+            bars.finish();
+            print!(
+                "{}",
+                if json {
+                    show::to_json("sweep", &sweep)
+                } else {
+                    show::sweep_text(&sweep)
+                }
+            );
         }
         Command::DemoData { out, seed, weeks } => {
             std::fs::create_dir_all(&out).map_err(|e| Error::Io {

@@ -532,6 +532,61 @@ pub fn profile_json(p: &Profile) -> String {
     s
 }
 
+/// Any result as pretty JSON under `key`, with plumb's version.
+pub fn to_json<T: serde::Serialize>(key: &str, value: &T) -> String {
+    let v = serde_json::json!({
+        "plumb_version": env!("CARGO_PKG_VERSION"),
+        key: value,
+    });
+    let mut s = serde_json::to_string_pretty(&v).unwrap_or_default();
+    s.push('\n');
+    s
+}
+
+pub fn sweep_text(s: &plumb::sweep::Sweep) -> String {
+    let mut out = String::new();
+    let graphs = s.rows.first().map_or(0, |r| r.graphs);
+    let level = s
+        .rows
+        .iter()
+        .find_map(|r| r.clustering_ratio.interval.map(|iv| iv.level))
+        .unwrap_or(0.95);
+    let _ = writeln!(
+        out,
+        "plumb sweep · Watts–Strogatz n={} k={} · {graphs} seeded graphs per p · ± is the half-width \
+         of the {:.0}% interval",
+        s.nodes,
+        s.degree,
+        100.0 * level
+    );
+    let _ = writeln!(
+        out,
+        "  C(0) = {:.6} (3(k-2)/(4(k-1))) · L(0) = {:.6} (exact, ring lattice)",
+        s.lattice_clustering, s.lattice_mean_distance
+    );
+    let _ = writeln!(
+        out,
+        "  {:<10} {:<20} {:<20} {:<10} L(p)",
+        "p", "C(p)/C(0)", "L(p)/L(0)", "C(p)"
+    );
+    let pm = |f: &Figure| match f.interval {
+        Some(iv) => format!("{:.4} ± {:.4}", f.value, (iv.high - iv.low) / 2.0),
+        None => format!("{:.4}", f.value),
+    };
+    for r in &s.rows {
+        let _ = writeln!(
+            out,
+            "  {:<10} {:<20} {:<20} {:<10.4} {:.3}",
+            r.p,
+            pm(&r.clustering_ratio),
+            pm(&r.distance_ratio),
+            r.clustering.value,
+            r.mean_distance.value
+        );
+    }
+    out
+}
+
 pub fn intake_json(g: &Graph) -> String {
     #[derive(serde::Serialize)]
     struct Out<'a> {
