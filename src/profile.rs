@@ -663,7 +663,8 @@ fn small_world(
     node_set: &str,
 ) -> SmallWorld {
     // One reference costs its generation, its clustering (as the input's did) and its distances
-    // from sampled sources (about 256, over about twice the mean distance in levels).
+    // from sampled sources (a pilot of 128 usually suffices for references; about twice the
+    // mean distance in levels).
     let clustering_secs: f64 = clock
         .stages
         .iter()
