@@ -54,6 +54,8 @@ pub struct ProfileOptions {
     pub reference_graphs: Option<usize>,
     /// Attempted double-edge swaps per edge when making degree-preserving references.
     pub swaps_per_edge: f64,
+    /// Which figure groups to compute.
+    pub groups: Groups,
     /// Threads the cost predictions assume (default: the pool's).
     pub threads: usize,
     pub rates: Rates,
@@ -75,8 +77,40 @@ impl Default for ProfileOptions {
             seed: 1,
             reference_graphs: None,
             swaps_per_edge: 2.0,
+            groups: Groups::default(),
             threads: rayon::current_num_threads(),
             rates: REFERENCE_RATES,
+        }
+    }
+}
+
+/// The figure groups beyond size, degrees and components (which are always computed: they cost a
+/// pass over the adjacency). The small-world comparison needs clustering and distances, so asking
+/// for it computes them too.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize, Deserialize, schemars::JsonSchema)]
+pub struct Groups {
+    pub clustering: bool,
+    pub distances: bool,
+    pub small_world: bool,
+}
+
+impl Default for Groups {
+    fn default() -> Self {
+        Groups {
+            clustering: true,
+            distances: true,
+            small_world: true,
+        }
+    }
+}
+
+impl Groups {
+    /// The groups actually run: small-world brings in what it needs.
+    pub fn effective(self) -> Groups {
+        Groups {
+            clustering: self.clustering || self.small_world,
+            distances: self.distances || self.small_world,
+            small_world: self.small_world,
         }
     }
 }
@@ -122,6 +156,8 @@ pub enum Distances {
     Estimated(Box<EstimatedDistances>),
     /// No pairs to measure (no edges).
     Empty,
+    /// Distances were not asked for.
+    NotRequested,
 }
 
 #[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
@@ -129,7 +165,8 @@ pub struct Profile {
     pub intake: Intake,
     pub degrees: DegreeStats,
     pub components: ComponentStats,
-    pub clustering: ClusteringStats,
+    /// `None` when clustering was not asked for.
+    pub clustering: Option<ClusteringStats>,
     /// Node set for the distance figures.
     pub distance_node_set: String,
     pub diameter: Option<DiameterFigures>,
@@ -217,6 +254,7 @@ pub fn profile(g: &Graph, opts: &ProfileOptions, progress: &dyn Progress) -> (Pr
     let n = csr.node_count();
     let threads = opts.threads;
     let budget = opts.exact_seconds;
+    let groups = opts.groups.effective();
     let user_budget = |c: Choice| (c == Choice::Auto).then_some(budget);
     let mut plan = Vec::new();
     let mut clock = Clock {
@@ -240,13 +278,15 @@ pub fn profile(g: &Graph, opts: &ProfileOptions, progress: &dyn Progress) -> (Pr
 
     let tri_secs = seconds(plan::triangle_work(csr), opts.rates.triangle, threads);
     let exact_clustering = decide(opts.clustering, tri_secs, budget);
-    let (clustering, tri_per_node, local) = if exact_clustering {
+    let (clustering, tri_per_node, local) = if !groups.clustering {
+        (None, None, None)
+    } else if exact_clustering {
         clock.start("triangles");
         let tri = triangles::count(csr);
         let local = clustering::local(csr, &tri);
         let stats = clustering::stats(csr, &tri, &local);
         clock.done("triangles");
-        (stats, Some(tri.per_node), Some(local))
+        (Some(stats), Some(tri.per_node), Some(local))
     } else {
         clock.start("sampled clustering");
         let stats = wedges::sampled_stats(
@@ -257,30 +297,32 @@ pub fn profile(g: &Graph, opts: &ProfileOptions, progress: &dyn Progress) -> (Pr
             opts.seed,
         );
         clock.done("sampled clustering");
-        (stats, None, None)
+        (Some(stats), None, None)
     };
-    plan.push(Decision {
-        group: "clustering".into(),
-        method: if exact_clustering {
-            "exact: forward triangle listing".into()
-        } else {
-            format!(
-                "wedge sampling to ±{} (C(k) bins to ±{}) at {}%",
-                opts.clustering_tolerance,
-                opts.bin_tolerance,
-                100.0 * opts.level
-            )
-        },
-        exact_seconds: tri_secs,
-        budget_seconds: user_budget(opts.clustering),
-        reason: why(
-            opts.clustering,
-            exact_clustering,
-            "triangle listing",
-            tri_secs,
-            budget,
-        ),
-    });
+    if groups.clustering {
+        plan.push(Decision {
+            group: "clustering".into(),
+            method: if exact_clustering {
+                "exact: forward triangle listing".into()
+            } else {
+                format!(
+                    "wedge sampling to ±{} (C(k) bins to ±{}) at {}%",
+                    opts.clustering_tolerance,
+                    opts.bin_tolerance,
+                    100.0 * opts.level
+                )
+            },
+            exact_seconds: tri_secs,
+            budget_seconds: user_budget(opts.clustering),
+            reason: why(
+                opts.clustering,
+                exact_clustering,
+                "triangle listing",
+                tri_secs,
+                budget,
+            ),
+        });
+    }
 
     let mut eccentricity = vec![None; n];
     let giant = comps.giant_nodes();
@@ -298,7 +340,9 @@ pub fn profile(g: &Graph, opts: &ProfileOptions, progress: &dyn Progress) -> (Pr
             .sum();
         (all - within) as u64
     };
-    let (diameter, distances, sub) = if giant.len() < 2 {
+    let (diameter, distances, sub) = if !groups.distances {
+        (None, Distances::NotRequested, None)
+    } else if giant.len() < 2 {
         (None, Distances::Empty, None)
     } else {
         let sub = components::induced(csr, &giant);
@@ -378,13 +422,15 @@ pub fn profile(g: &Graph, opts: &ProfileOptions, progress: &dyn Progress) -> (Pr
         };
         (Some(figures), dist, Some(sub))
     };
-    let small_world = match (&sub, &distances) {
-        (Some(sub), Distances::Exact(_) | Distances::Estimated(_)) if sub.edge_count() > 0 => {
+    let small_world = match (&sub, &distances, &clustering) {
+        (Some(sub), Distances::Exact(_) | Distances::Estimated(_), Some(clustering))
+            if groups.small_world && sub.edge_count() > 0 =>
+        {
             let observed = observed_on_giant(
                 sub,
                 &giant,
                 n,
-                &clustering,
+                clustering,
                 tri_per_node.as_deref().zip(local.as_deref()),
                 &distances,
                 opts,
@@ -597,7 +643,7 @@ fn observed_on_giant(
     let mean_distance = match distances {
         Distances::Exact(d) => d.mean.clone(),
         Distances::Estimated(d) => d.mean.clone(),
-        Distances::Empty => Figure::exact(0.0, "no pairs"),
+        Distances::Empty | Distances::NotRequested => Figure::exact(0.0, "no pairs"),
     };
     Observed {
         nodes: n as u64,

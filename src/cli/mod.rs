@@ -216,6 +216,16 @@ struct PlanArgs {
     /// HyperBall runs with independent hash seeds (their spread gives the intervals).
     #[arg(long, value_name = "N", default_value_t = 5, value_parser = clap::value_parser!(u32).range(2..))]
     ball_runs: u32,
+    /// Figure groups to compute besides size, degrees and components (always shown):
+    /// clustering, distances, small-world (which brings in the other two), or all.
+    #[arg(
+        long,
+        value_enum,
+        value_delimiter = ',',
+        default_value = "all",
+        value_name = "GROUPS"
+    )]
+    figures: Vec<FigureGroup>,
     /// Sampled reference graphs of each kind (random with the same n and m; random with the
     /// same degrees) for the small-world comparison (default: 4 when they fit the budget,
     /// else none; analytic references are always given).
@@ -228,6 +238,14 @@ struct PlanArgs {
     /// count).
     #[arg(long, default_value_t = 1)]
     seed: u64,
+}
+
+#[derive(ValueEnum, Clone, Copy, Debug, PartialEq, Eq)]
+enum FigureGroup {
+    All,
+    Clustering,
+    Distances,
+    SmallWorld,
 }
 
 #[derive(ValueEnum, Clone, Copy, Debug)]
@@ -308,6 +326,14 @@ impl PlanArgs {
             level: self.level,
             seed: self.seed,
             reference_graphs: self.reference_graphs,
+            groups: {
+                let has = |g| self.figures.contains(&FigureGroup::All) || self.figures.contains(&g);
+                plumb::profile::Groups {
+                    clustering: has(FigureGroup::Clustering),
+                    distances: has(FigureGroup::Distances),
+                    small_world: has(FigureGroup::SmallWorld),
+                }
+            },
             swaps_per_edge: self.swaps_per_edge.max(0.0),
             ..defaults
         }

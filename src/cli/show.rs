@@ -277,83 +277,87 @@ pub fn profile_text(g: &Graph, p: &Profile, per_node: Option<&std::path::Path>) 
             count(c.singletons)
         ),
     );
-    let k = &p.clustering;
-    let exact = k.transitivity.is_exact();
-    section(
-        &mut out,
-        if exact {
-            "clustering (exact, forward triangle listing)"
-        } else {
-            "clustering (estimated by wedge sampling; ± is the interval's half-width)"
-        },
-    );
-    if exact {
-        row(
+    if let Some(k) = &p.clustering {
+        let exact = k.transitivity.is_exact();
+        section(
             &mut out,
-            "triangles",
-            format!(
-                "{} · wedges {} · transitivity {}",
-                count(k.triangles.value as u64),
-                u64::try_from(k.wedges).map_or(k.wedges.to_string(), count),
-                fixed(k.transitivity.value, 6)
-            ),
+            if exact {
+                "clustering (exact, forward triangle listing)"
+            } else {
+                "clustering (estimated by wedge sampling; ± is the interval's half-width)"
+            },
         );
-    } else {
+        if exact {
+            row(
+                &mut out,
+                "triangles",
+                format!(
+                    "{} · wedges {} · transitivity {}",
+                    count(k.triangles.value as u64),
+                    u64::try_from(k.wedges).map_or(k.wedges.to_string(), count),
+                    fixed(k.transitivity.value, 6)
+                ),
+            );
+        } else {
+            row(
+                &mut out,
+                "triangles",
+                format!(
+                    "{} · transitivity {}",
+                    fig(&k.triangles, 0),
+                    fig(&k.transitivity, 4)
+                ),
+            );
+            row(
+                &mut out,
+                "",
+                format!(
+                    "from {} sampled wedges of {}",
+                    count(k.transitivity.sample_size.unwrap_or(0)),
+                    u64::try_from(k.wedges).map_or(k.wedges.to_string(), count),
+                ),
+            );
+        }
+        let places = if exact { 6 } else { 4 };
         row(
             &mut out,
-            "triangles",
+            "local",
             format!(
-                "{} · transitivity {}",
-                fig(&k.triangles, 0),
-                fig(&k.transitivity, 4)
+                "average {} with degree<2 as 0",
+                fig(&k.average_zeros, places),
             ),
         );
         row(
             &mut out,
             "",
             format!(
-                "from {} sampled wedges of {}",
-                count(k.transitivity.sample_size.unwrap_or(0)),
-                u64::try_from(k.wedges).map_or(k.wedges.to_string(), count),
+                "average {} over degree≥2 only",
+                fig(&k.average_deg2, places)
             ),
         );
+        let ck: Vec<String> = k
+            .by_degree
+            .iter()
+            .map(|b| match &b.mean.interval {
+                Some(iv) if !b.mean.is_exact() => format!(
+                    "{}–{}: {:.3}±{:.3}",
+                    b.low,
+                    b.high,
+                    b.mean.value,
+                    (iv.high - iv.low) / 2.0
+                ),
+                _ => format!("{}–{}: {:.3}", b.low, b.high, b.mean.value),
+            })
+            .collect();
+        row(&mut out, "C(k)", ck.join(" · "));
     }
-    let places = if exact { 6 } else { 4 };
-    row(
-        &mut out,
-        "local",
-        format!(
-            "average {} with degree<2 as 0",
-            fig(&k.average_zeros, places),
-        ),
-    );
-    row(
-        &mut out,
-        "",
-        format!(
-            "average {} over degree≥2 only",
-            fig(&k.average_deg2, places)
-        ),
-    );
-    let ck: Vec<String> = k
-        .by_degree
-        .iter()
-        .map(|b| match &b.mean.interval {
-            Some(iv) if !b.mean.is_exact() => format!(
-                "{}–{}: {:.3}±{:.3}",
-                b.low,
-                b.high,
-                b.mean.value,
-                (iv.high - iv.low) / 2.0
-            ),
-            _ => format!("{}–{}: {:.3}", b.low, b.high, b.mean.value),
-        })
-        .collect();
-    row(&mut out, "C(k)", ck.join(" · "));
-    section(
-        &mut out,
-        &format!("distances on the {}", p.distance_node_set),
-    );
+    if !matches!(p.distances, Distances::NotRequested) {
+        section(
+            &mut out,
+            &format!("distances on the {}", p.distance_node_set),
+        );
+    }
+
     if let Some(dm) = &p.diameter {
         let f = &dm.diameter;
         let text = match (&f.method, &f.interval) {
@@ -456,6 +460,7 @@ pub fn profile_text(g: &Graph, p: &Profile, per_node: Option<&std::path::Path>) 
             }
         }
         Distances::Empty => row(&mut out, "mean", "no pairs: the graph has no edges"),
+        Distances::NotRequested => {}
     }
     if let Some(sw) = &p.small_world {
         section(
