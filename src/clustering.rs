@@ -11,7 +11,7 @@ use crate::numeric::det_sum;
 use crate::triangles::Triangles;
 
 /// Mean local clustering of the nodes whose degree falls in `[low, high]`.
-#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize, schemars::JsonSchema)]
 pub struct DegreeClustering {
     pub low: u32,
     pub high: u32,
@@ -19,7 +19,7 @@ pub struct DegreeClustering {
     pub mean: Figure,
 }
 
-#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize, schemars::JsonSchema)]
 pub struct ClusteringStats {
     pub triangles: Figure,
     /// Sum over nodes of C(d, 2), the connected triples centred at each node.

@@ -22,7 +22,7 @@ pub struct Components {
 }
 
 /// The summary a profile reports.
-#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize, schemars::JsonSchema)]
 pub struct ComponentStats {
     pub count: u64,
     pub giant_nodes: u64,

@@ -7,14 +7,14 @@ use serde::{Deserialize, Serialize};
 use crate::csr::Csr;
 
 /// A logarithmic bin of degrees `[low, high]` (both inclusive) and how many nodes fall in it.
-#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize, schemars::JsonSchema)]
 pub struct DegreeBin {
     pub low: u32,
     pub high: u32,
     pub nodes: u64,
 }
 
-#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize, schemars::JsonSchema)]
 pub struct DegreeStats {
     pub nodes: u64,
     pub edges: u64,

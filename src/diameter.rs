@@ -30,7 +30,7 @@ pub struct Sweep {
     pub bfs_runs: u64,
 }
 
-#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize, schemars::JsonSchema)]
 pub struct Diameter {
     /// Exact when `lower == upper`.
     pub lower: u32,

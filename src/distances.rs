@@ -152,7 +152,7 @@ fn batch<const EACH: bool>(
 }
 
 /// Distance figures of a connected node set, with the convention for pairs stated.
-#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize, schemars::JsonSchema)]
 pub struct DistanceStats {
     /// Which nodes the figures cover, e.g. "giant component".
     pub node_set: String,

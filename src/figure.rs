@@ -5,7 +5,7 @@
 use serde::{Deserialize, Serialize};
 
 /// How a figure was obtained.
-#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize, schemars::JsonSchema)]
 #[serde(tag = "kind", rename_all = "lowercase")]
 pub enum Method {
     /// Computed exactly by the named algorithm.
@@ -18,7 +18,7 @@ pub enum Method {
 }
 
 /// A two-sided confidence interval.
-#[derive(Debug, Clone, Copy, PartialEq, Serialize, Deserialize)]
+#[derive(Debug, Clone, Copy, PartialEq, Serialize, Deserialize, schemars::JsonSchema)]
 pub struct Interval {
     pub low: f64,
     pub high: f64,
@@ -26,7 +26,7 @@ pub struct Interval {
     pub level: f64,
 }
 
-#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize, schemars::JsonSchema)]
 pub struct Figure {
     pub value: f64,
     pub method: Method,

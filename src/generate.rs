@@ -14,7 +14,7 @@ use crate::csr::Csr;
 use crate::ingest::fill::csr_from_pairs;
 
 /// A reference graph model and its parameters.
-#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize, schemars::JsonSchema)]
 #[serde(tag = "model", rename_all = "kebab-case")]
 pub enum Model {
     /// Ring lattice: node i joined to its k/2 nearest neighbours on each side.

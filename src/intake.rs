@@ -5,14 +5,14 @@ use serde::{Deserialize, Serialize};
 
 use crate::input::source::Compression;
 
-#[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize, Deserialize)]
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize, Deserialize, schemars::JsonSchema)]
 #[serde(rename_all = "kebab-case")]
 pub enum InputFormat {
     EdgeList,
     MatrixMarket,
 }
 
-#[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize, Deserialize)]
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize, Deserialize, schemars::JsonSchema)]
 #[serde(rename_all = "lowercase")]
 pub enum IdKind {
     /// Unsigned integers up to 2^64-1.
@@ -22,7 +22,7 @@ pub enum IdKind {
 }
 
 /// A malformed line that was skipped (with `--skip-malformed`).
-#[derive(Debug, Clone, PartialEq, Eq, Serialize, Deserialize)]
+#[derive(Debug, Clone, PartialEq, Eq, Serialize, Deserialize, schemars::JsonSchema)]
 pub struct BadLine {
     pub line: u64,
     pub byte: u64,
@@ -31,13 +31,13 @@ pub struct BadLine {
 }
 
 /// Wall time of one stage of the build.
-#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize, schemars::JsonSchema)]
 pub struct Stage {
     pub name: String,
     pub seconds: f64,
 }
 
-#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize, schemars::JsonSchema)]
 pub struct Intake {
     /// The path as given.
     pub source: String,

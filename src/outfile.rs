@@ -77,6 +77,13 @@ impl Drop for AtomicFile {
     }
 }
 
+/// Write `data` to `dest` atomically.
+pub fn write_atomic(dest: &Path, data: &[u8]) -> Result<()> {
+    let mut f = AtomicFile::create(dest)?;
+    f.write_all(data).map_err(|e| f.fail(e))?;
+    f.commit()
+}
+
 /// Compress `data` as independent zstd frames of about `frame_bytes` each (compressed in
 /// parallel, and decodable in parallel by plumb) and write them atomically to `dest`.
 pub fn write_zstd_frames(dest: &Path, data: &[u8], level: i32, frame_bytes: usize) -> Result<u64> {

@@ -30,7 +30,7 @@ pub const REFERENCE_RATES: Rates = Rates {
 };
 
 /// What the planner decided for one figure group, and why.
-#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize, schemars::JsonSchema)]
 pub struct Decision {
     /// The figure group: "clustering", "distances", "diameter".
     pub group: String,

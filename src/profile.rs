@@ -119,7 +119,7 @@ impl Groups {
 pub const DEFAULT_EXACT_SECONDS: f64 = 20.0;
 
 /// The diameter of the node set distances are reported on.
-#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize, schemars::JsonSchema)]
 pub struct DiameterFigures {
     pub diameter: Figure,
     /// The double-sweep lower bound.
@@ -129,7 +129,7 @@ pub struct DiameterFigures {
 }
 
 /// Distance figures estimated on a connected node set.
-#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize, schemars::JsonSchema)]
 pub struct EstimatedDistances {
     pub node_set: String,
     pub nodes: u64,
@@ -149,7 +149,7 @@ pub struct EstimatedDistances {
 }
 
 /// The distance figures, exact or estimated.
-#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize, schemars::JsonSchema)]
 #[serde(tag = "status", rename_all = "kebab-case")]
 pub enum Distances {
     Exact(Box<DistanceStats>),
@@ -160,7 +160,7 @@ pub enum Distances {
     NotRequested,
 }
 
-#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize, schemars::JsonSchema)]
 pub struct Profile {
     pub intake: Intake,
     pub degrees: DegreeStats,

@@ -12,7 +12,7 @@ use serde::{Deserialize, Serialize};
 use crate::csr::Csr;
 use crate::ingest::fill::csr_from_pairs;
 
-#[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize, Deserialize)]
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize, Deserialize, schemars::JsonSchema)]
 pub struct SwapReport {
     pub attempted: u64,
     /// Swaps made; the rest would have made a self-loop or a repeated edge.
@@ -88,7 +88,7 @@ pub fn degree_preserving(g: &Csr, swaps_per_edge: f64, seed: u64) -> (Csr, SwapR
     (csr_from_pairs(g.node_count(), &e), report)
 }
 
-#[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize, Deserialize)]
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize, Deserialize, schemars::JsonSchema)]
 pub struct ConfigurationReport {
     /// Stub pairs that joined a node to itself (erased).
     pub loops_erased: u64,

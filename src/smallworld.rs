@@ -75,7 +75,7 @@ pub fn lattice_degree(k: f64, n: u64) -> u32 {
 }
 
 /// One reference's figures and where they come from.
-#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize, schemars::JsonSchema)]
 pub struct Reference {
     /// What the reference is, e.g. "random, analytic Erdős–Rényi".
     pub name: String,
@@ -103,7 +103,7 @@ pub struct Observed {
 }
 
 /// sigma, omega and phi for one choice of clustering.
-#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize, schemars::JsonSchema)]
 pub struct Coefficients {
     /// "transitivity" or "average local clustering".
     pub clustering: String,
@@ -116,7 +116,7 @@ pub struct Coefficients {
     pub verdicts: Vec<String>,
 }
 
-#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize, schemars::JsonSchema)]
 pub struct SmallWorld {
     /// Node set the comparison is made on.
     pub node_set: String,

@@ -11,7 +11,7 @@ use crate::numeric::det_sum;
 use crate::profile::{ProfileOptions, measure_reference};
 use crate::smallworld::{lattice_clustering, lattice_mean_distance};
 
-#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize, schemars::JsonSchema)]
 pub struct SweepRow {
     pub p: f64,
     pub graphs: u64,
@@ -23,7 +23,7 @@ pub struct SweepRow {
     pub distance_ratio: Figure,
 }
 
-#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize, schemars::JsonSchema)]
 pub struct Sweep {
     pub nodes: u32,
     pub degree: u32,

@@ -42,9 +42,13 @@ enum Command {
     Profile {
         #[command(flatten)]
         input: InputArgs,
-        /// Print the profile as JSON instead of text.
-        #[arg(long)]
-        json: bool,
+        /// Write the profile as JSON (schema: `plumb schema`, docs/profile.schema.json) to FILE,
+        /// or print it instead of the text when no FILE is given.
+        #[arg(long, value_name = "FILE", num_args = 0..=1, default_missing_value = "-")]
+        json: Option<PathBuf>,
+        /// Also write the profile as a self-contained HTML page with charts.
+        #[arg(long, value_name = "FILE")]
+        html: Option<PathBuf>,
         /// Also write one row per node (id, degree, triangles, clustering, component,
         /// eccentricity) as TSV; zstd-compressed when the name ends in .zst.
         #[arg(long, value_name = "FILE")]
@@ -52,6 +56,8 @@ enum Command {
         #[command(flatten)]
         plan: PlanArgs,
     },
+    /// Print the JSON Schema of the profile report.
+    Schema,
     /// Read an edge file and show what was read: sizes, cleaning counts, degrees, timings.
     Intake {
         #[command(flatten)]
@@ -549,6 +555,7 @@ pub fn run(args: Args) -> Result<ExitCode, Error> {
         Command::Profile {
             input,
             json,
+            html,
             per_node,
             plan,
         } => {
@@ -558,13 +565,42 @@ pub fn run(args: Args) -> Result<ExitCode, Error> {
             if let Some(path) = &per_node {
                 plumb::pernode::write(&g, &table, path)?;
             }
-            let text = if json {
-                show::profile_json(&p)
-            } else {
-                show::profile_text(&g, &p, per_node.as_deref())
+            let source = (input.input.as_os_str() != "-").then_some(input.input.as_path());
+            let report = plumb::report::Report::new(p, source, &opts)?;
+            let json_text = || {
+                let mut s = serde_json::to_string_pretty(&report).unwrap_or_default();
+                s.push('\n');
+                s
             };
-            print!("{text}");
+            if let Some(path) = &html {
+                plumb::outfile::write_atomic(path, plumb::html::page(&report).as_bytes())?;
+            }
+            match json.as_deref() {
+                Some(p) if p.as_os_str() == "-" => print!("{}", json_text()),
+                Some(p) => {
+                    plumb::outfile::write_atomic(p, json_text().as_bytes())?;
+                    print!(
+                        "{}",
+                        show::profile_text(&g, &report.profile, per_node.as_deref())
+                    );
+                }
+                None => print!(
+                    "{}",
+                    show::profile_text(&g, &report.profile, per_node.as_deref())
+                ),
+            }
+            let mut written = Vec::new();
+            if let Some(p) = json.as_deref().filter(|p| p.as_os_str() != "-") {
+                written.push(format!("JSON {}", p.display()));
+            }
+            if let Some(p) = &html {
+                written.push(format!("HTML {}", p.display()));
+            }
+            if !written.is_empty() && json.as_deref().is_none_or(|p| p.as_os_str() != "-") {
+                println!("  {:<11}{}", "wrote", written.join(" · "));
+            }
         }
+        Command::Schema => print!("{}", plumb::report::schema_json()),
         Command::Intake { input, json } => {
             let g = ingest::load(&input.input, &input.options(), &bars)?;
             let text = if json {

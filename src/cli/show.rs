@@ -522,21 +522,6 @@ pub fn profile_text(g: &Graph, p: &Profile, per_node: Option<&std::path::Path>) 
     out
 }
 
-pub fn profile_json(p: &Profile) -> String {
-    #[derive(serde::Serialize)]
-    struct Out<'a> {
-        plumb_version: &'static str,
-        profile: &'a Profile,
-    }
-    let mut s = serde_json::to_string_pretty(&Out {
-        plumb_version: env!("CARGO_PKG_VERSION"),
-        profile: p,
-    })
-    .unwrap_or_default();
-    s.push('\n');
-    s
-}
-
 /// Any result as pretty JSON under `key`, with plumb's version.
 pub fn to_json<T: serde::Serialize>(key: &str, value: &T) -> String {
     let v = serde_json::json!({

@@ -9,7 +9,9 @@ use rayon::prelude::*;
 use crate::error::{Error, Result};
 
 /// Compression of an input, recognised by its first bytes (never by its name).
-#[derive(Debug, Clone, Copy, PartialEq, Eq, serde::Serialize, serde::Deserialize)]
+#[derive(
+    Debug, Clone, Copy, PartialEq, Eq, serde::Serialize, serde::Deserialize, schemars::JsonSchema,
+)]
 #[serde(rename_all = "lowercase")]
 pub enum Compression {
     None,
