@@ -527,9 +527,9 @@ pub fn page(r: &Report) -> String {
         .iter()
         .map(|s| format!("{} {:.2} s", s.name, s.seconds))
         .collect();
-    let _ = write!(
+    let _ = writeln!(
         out,
-        "<footer>Timings: {}. Written by plumb {}; figures and intervals also in the JSON report (same schema name and version).</footer></main></body></html>\n",
+        "<footer>Timings: {}. Written by plumb {}; figures and intervals also in the JSON report (same schema name and version).</footer></main></body></html>",
         esc(&stages.join(" · ")),
         esc(&r.plumb_version)
     );
