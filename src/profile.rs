@@ -29,6 +29,9 @@ use crate::triangles;
 pub struct ProfileOptions {
     /// Seconds an exact method may be predicted to take before the planner estimates instead.
     pub exact_seconds: f64,
+    /// Seconds the exact diameter search (iFUB) may take when all-pairs distances do not run;
+    /// beyond it the diameter is given as certain bounds.
+    pub diameter_seconds: f64,
     /// Exact or estimated clustering (auto: by the budget).
     pub clustering: Choice,
     /// Exact or estimated distances (auto: by the budget).
@@ -65,6 +68,7 @@ impl Default for ProfileOptions {
     fn default() -> Self {
         ProfileOptions {
             exact_seconds: DEFAULT_EXACT_SECONDS,
+            diameter_seconds: DEFAULT_DIAMETER_SECONDS,
             clustering: Choice::Auto,
             distances: Choice::Auto,
             distance_estimator: DistanceEstimator::Cheaper,
@@ -114,6 +118,9 @@ impl Groups {
         }
     }
 }
+
+/// Default time for the exact diameter search.
+pub const DEFAULT_DIAMETER_SECONDS: f64 = 1.0;
 
 /// Default time for each exact figure group.
 pub const DEFAULT_EXACT_SECONDS: f64 = 20.0;
@@ -357,8 +364,9 @@ pub fn profile(g: &Graph, opts: &ProfileOptions, progress: &dyn Progress) -> (Pr
             threads,
         );
         let all = decide(opts.distances, ap_secs, budget);
-        // The diameter search gets the same time as any exact group, in BFS words.
-        let word_budget = budget * opts.rates.bfs_words * threads as f64;
+        // The diameter search has its own, smaller budget: on real-world graphs iFUB needs a few
+        // searches, and where it needs many (homogeneous random graphs) certain bounds serve.
+        let word_budget = opts.diameter_seconds * opts.rates.bfs_words * threads as f64;
         let d = if all {
             None
         } else {
@@ -397,9 +405,13 @@ pub fn profile(g: &Graph, opts: &ProfileOptions, progress: &dyn Progress) -> (Pr
                 double_sweep_bound: sweep_bound,
                 bfs_runs: 3 + s.nodes,
             },
-            (_, Some(d)) => {
+            (dist, Some(mut d)) => {
                 for &(v, e) in &d.known {
                     eccentricity[giant[v as usize] as usize] = Some(e);
+                }
+                // The sampled sources' farthest distance is an eccentricity too: a lower bound.
+                if let Distances::Estimated(e) = dist {
+                    d.lower = d.lower.max(e.distribution.len() as u32).min(d.upper);
                 }
                 DiameterFigures {
                     diameter: if d.is_exact() {
@@ -411,7 +423,8 @@ pub fn profile(g: &Graph, opts: &ProfileOptions, progress: &dyn Progress) -> (Pr
                         Figure::bounds(
                             d.lower as f64,
                             d.upper as f64,
-                            "double sweep + iFUB stopped at the time budget",
+                            "double sweep, iFUB stopped at the time budget, and the sampled \
+                             sources' eccentricities",
                         )
                     },
                     double_sweep_bound: d.double_sweep_bound,

@@ -36,6 +36,8 @@ pub struct Settings {
     pub level: f64,
     /// Time each exact figure group may be predicted to take, in seconds.
     pub exact_seconds: f64,
+    /// Time the exact diameter search may take, in seconds.
+    pub diameter_seconds: f64,
     /// Half-width of the clustering intervals when sampled (absolute).
     pub clustering_margin: f64,
     /// Half-width of the mean-distance interval when estimated, relative to the mean.
@@ -101,6 +103,7 @@ impl Report {
                 seed: opts.seed,
                 level: opts.level,
                 exact_seconds: opts.exact_seconds,
+                diameter_seconds: opts.diameter_seconds,
                 clustering_margin: opts.clustering_tolerance,
                 distance_margin: opts.distance_tolerance,
                 reference_graphs: opts.reference_graphs,

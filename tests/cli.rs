@@ -46,7 +46,7 @@ fn intake_of_the_demo_data() {
 
 #[test]
 fn json_report_and_stdin() {
-    let out = plumb_stdin(&["intake", "--json", "-"], b"1 2\n2 3\n3 3\n");
+    let out = plumb_stdin(&["intake", "--json", "-", "-"], b"1 2\n2 3\n3 3\n");
     assert!(out.status.success());
     let v: serde_json::Value = serde_json::from_slice(&out.stdout).unwrap();
     assert_eq!(v["intake"]["edges"], 2);
@@ -55,7 +55,7 @@ fn json_report_and_stdin() {
     assert_eq!(v["degree"]["max"], 2);
     // Compressed standard input is sniffed like a file.
     let z = zstd::encode_all(&b"1 2\n2 3\n"[..], 3).unwrap();
-    let out = plumb_stdin(&["intake", "--json", "-"], &z);
+    let out = plumb_stdin(&["intake", "--json", "-", "-"], &z);
     let v: serde_json::Value = serde_json::from_slice(&out.stdout).unwrap();
     assert_eq!(v["intake"]["compression"], "zstd");
 }
@@ -74,8 +74,8 @@ fn pack_verify_and_reuse_a_store() {
     let out = plumb(&["verify", s]);
     assert!(out.status.success());
     assert!(String::from_utf8_lossy(&out.stdout).contains("ok"));
-    let from_store = plumb(&["intake", "--json", s]);
-    let from_text = plumb(&["intake", "--json", DEMO]);
+    let from_store = plumb(&["intake", "--json", "-", s]);
+    let from_text = plumb(&["intake", "--json", "-", DEMO]);
     let a: serde_json::Value = serde_json::from_slice(&from_store.stdout).unwrap();
     let b: serde_json::Value = serde_json::from_slice(&from_text.stdout).unwrap();
     assert_eq!(a["intake"]["edges"], b["intake"]["edges"]);
@@ -143,7 +143,7 @@ fn profile_with_a_per_node_table() {
     // Member 34: degree 17, clustering 0.110294 (NetworkX 3.6.1: 0.11029411764705882).
     assert_eq!(&rows[34][..4], ["34", "17", "15", "0.110294"]);
     // JSON carries every figure with its method.
-    let out = plumb(&["profile", "--json", "tests/data/karate.mtx"]);
+    let out = plumb(&["profile", "--json", "-", "tests/data/karate.mtx"]);
     let v: serde_json::Value = serde_json::from_slice(&out.stdout).unwrap();
     let t = &v["profile"]["clustering"]["transitivity"];
     assert_eq!(t["method"]["kind"], "exact");
@@ -157,6 +157,7 @@ fn planner_choices_reach_the_report() {
         "profile",
         "tests/data/lesmis.csv",
         "--json",
+        "-",
         "--clustering",
         "sampled",
         "--distances",
@@ -178,7 +179,7 @@ fn planner_choices_reach_the_report() {
         t["interval"]["high"].as_f64().unwrap(),
     );
     // The exact run gives the truth (its value is pinned against NetworkX in exact_structure).
-    let exact = plumb(&["profile", "tests/data/lesmis.csv", "--json"]);
+    let exact = plumb(&["profile", "tests/data/lesmis.csv", "--json", "-"]);
     let e: serde_json::Value = serde_json::from_slice(&exact.stdout).unwrap();
     let truth = e["profile"]["clustering"]["transitivity"]["value"]
         .as_f64()
@@ -230,6 +231,14 @@ fn sweep_and_synth_as_a_user_runs_them() {
     // C(0) = 3(k-2)/(4(k-1)) = 0.6 for k = 6 (Watts & Strogatz 1998).
     assert!(text.contains("C(0) = 0.600000"), "{text}");
     assert_eq!(text.lines().count(), 6, "{text}");
+    // Outputs never overwrite the input.
+    let before = std::fs::read("tests/data/lesmis.csv").unwrap();
+    for flag in ["--json", "--html", "--per-node"] {
+        let out = plumb(&["profile", "tests/data/lesmis.csv", flag, "tests/data/lesmis.csv"]);
+        assert_eq!(out.status.code(), Some(2), "{flag}");
+        assert!(String::from_utf8_lossy(&out.stderr).contains("never writes over its input"));
+    }
+    assert_eq!(std::fs::read("tests/data/lesmis.csv").unwrap(), before);
     let out = plumb(&["sweep", "--p", "2"]);
     assert_eq!(
         out.status.code(),

@@ -307,6 +307,7 @@ fn diameter_under_a_small_budget_is_bounded_never_guessed() {
         &g,
         &ProfileOptions {
             exact_seconds: 2e7 / plumb::plan::REFERENCE_RATES.bfs_words,
+            diameter_seconds: 2e7 / plumb::plan::REFERENCE_RATES.bfs_words,
             threads: 1,
             ..ProfileOptions::default()
         },

@@ -42,9 +42,9 @@ enum Command {
     Profile {
         #[command(flatten)]
         input: InputArgs,
-        /// Write the profile as JSON (schema: `plumb schema`, docs/profile.schema.json) to FILE,
-        /// or print it instead of the text when no FILE is given.
-        #[arg(long, value_name = "FILE", num_args = 0..=1, default_missing_value = "-")]
+        /// Write the profile as JSON (schema: `plumb schema`, docs/profile.schema.json) to FILE;
+        /// `-` prints it instead of the text.
+        #[arg(long, value_name = "FILE")]
         json: Option<PathBuf>,
         /// Also write the profile as a self-contained HTML page with charts.
         #[arg(long, value_name = "FILE")]
@@ -62,9 +62,9 @@ enum Command {
     Intake {
         #[command(flatten)]
         input: InputArgs,
-        /// Print the intake report as JSON instead of text.
-        #[arg(long)]
-        json: bool,
+        /// Write the intake report as JSON to FILE; `-` prints it instead of the text.
+        #[arg(long, value_name = "FILE")]
+        json: Option<PathBuf>,
     },
     /// Build the adjacency store and save it as a store file that reopens in place.
     Pack {
@@ -110,9 +110,9 @@ enum Command {
         /// Seeded graphs per probability.
         #[arg(long, value_name = "R", default_value_t = 5)]
         graphs: usize,
-        /// Print the sweep as JSON instead of a table.
-        #[arg(long)]
-        json: bool,
+        /// Write the sweep as JSON to FILE; `-` prints it instead of the table.
+        #[arg(long, value_name = "FILE")]
+        json: Option<PathBuf>,
         #[arg(long, default_value_t = 1)]
         seed: u64,
     },
@@ -196,6 +196,11 @@ struct PlanArgs {
     #[arg(long, value_name = "SECONDS", default_value_t = plumb::profile::DEFAULT_EXACT_SECONDS,
           value_parser = parse_seconds)]
     exact_within: f64,
+    /// Seconds the exact diameter search may take when all-pairs distances do not run; beyond
+    /// it the diameter is reported as certain bounds.
+    #[arg(long, value_name = "SECONDS", default_value_t = plumb::profile::DEFAULT_DIAMETER_SECONDS,
+          value_parser = parse_seconds)]
+    diameter_within: f64,
     /// Clustering: exact or sampled by the budget (auto), or always one of them.
     #[arg(long, value_enum, default_value_t = ClusteringArg::Auto)]
     clustering: ClusteringArg,
@@ -313,6 +318,7 @@ impl PlanArgs {
         let defaults = plumb::profile::ProfileOptions::default();
         plumb::profile::ProfileOptions {
             exact_seconds: self.exact_within,
+            diameter_seconds: self.diameter_within,
             clustering: match self.clustering {
                 ClusteringArg::Auto => Choice::Auto,
                 ClusteringArg::Exact => Choice::Exact,
@@ -420,6 +426,43 @@ pub fn exit_code(e: &Error) -> ExitCode {
     }
 }
 
+/// Refuse an output path that names the input file: inputs are never modified.
+fn guard(out: Option<&std::path::Path>, input: &std::path::Path) -> Result<(), Error> {
+    let Some(out) = out else { return Ok(()) };
+    if out.as_os_str() == "-" || input.as_os_str() == "-" {
+        return Ok(());
+    }
+    if let (Ok(a), Ok(b)) = (out.canonicalize(), input.canonicalize())
+        && a == b
+    {
+        return Err(Error::Parameters {
+            problem: format!(
+                "{} is the input; plumb never writes over its input (choose another output file)",
+                out.display()
+            ),
+        });
+    }
+    Ok(())
+}
+
+/// Print `text()`, or with `json` write `json_text()` to that file (`-`: print it instead).
+fn emit(
+    json: Option<&std::path::Path>,
+    json_text: impl FnOnce() -> String,
+    text: impl FnOnce() -> String,
+) -> Result<(), Error> {
+    match json {
+        Some(p) if p.as_os_str() == "-" => print!("{}", json_text()),
+        Some(p) => {
+            plumb::outfile::write_atomic(p, json_text().as_bytes())?;
+            print!("{}", text());
+            println!("  {:<11}JSON {}", "wrote", p.display());
+        }
+        None => print!("{}", text()),
+    }
+    Ok(())
+}
+
 fn synth(
     model: SynthModel,
     out: &std::path::Path,
@@ -466,6 +509,7 @@ fn synth(
             if swaps_per_edge.is_nan() || swaps_per_edge < 0.0 {
                 return Err(bad("--swaps-per-edge must be >= 0".into()));
             }
+            guard(Some(out), &input.input)?;
             let g = ingest::load(&input.input, &input.options(), bars)?;
             let (r, rep) = plumb::randomize::degree_preserving(&g.csr, swaps_per_edge, seed);
             let what = format!(
@@ -485,6 +529,7 @@ fn synth(
             (what, g.node_count() as u64, extra)
         }
         SynthModel::Config { input } => {
+            guard(Some(out), &input.input)?;
             let g = ingest::load(&input.input, &input.options(), bars)?;
             let degrees: Vec<u32> = (0..g.node_count() as u32)
                 .map(|v| g.csr.degree(v))
@@ -560,6 +605,9 @@ pub fn run(args: Args) -> Result<ExitCode, Error> {
             plan,
         } => {
             let opts = plan.options();
+            for out in [json.as_deref(), html.as_deref(), per_node.as_deref()] {
+                guard(out, &input.input)?;
+            }
             let g = ingest::load(&input.input, &input.options(), &bars)?;
             let (p, table) = plumb::profile::profile(&g, &opts, &bars);
             if let Some(path) = &per_node {
@@ -602,15 +650,12 @@ pub fn run(args: Args) -> Result<ExitCode, Error> {
         }
         Command::Schema => print!("{}", plumb::report::schema_json()),
         Command::Intake { input, json } => {
+            guard(json.as_deref(), &input.input)?;
             let g = ingest::load(&input.input, &input.options(), &bars)?;
-            let text = if json {
-                show::intake_json(&g)
-            } else {
-                show::intake_text(&g)
-            };
-            print!("{text}");
+            emit(json.as_deref(), || show::intake_json(&g), || show::intake_text(&g))?;
         }
         Command::Pack { input, out } => {
+            guard(Some(&out), &input.input)?;
             let g = ingest::load(&input.input, &input.options(), &bars)?;
             let t = std::time::Instant::now();
             let bytes = plumb::store::write(&g, &out)?;
@@ -666,14 +711,11 @@ pub fn run(args: Args) -> Result<ExitCode, Error> {
             })
             .map_err(|problem| Error::Parameters { problem })?;
             bars.finish();
-            print!(
-                "{}",
-                if json {
-                    show::to_json("sweep", &sweep)
-                } else {
-                    show::sweep_text(&sweep)
-                }
-            );
+            emit(
+                json.as_deref(),
+                || show::to_json("sweep", &sweep),
+                || show::sweep_text(&sweep),
+            )?;
         }
         Command::DemoData { out, seed, weeks } => {
             std::fs::create_dir_all(&out).map_err(|e| Error::Io {

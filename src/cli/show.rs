@@ -363,7 +363,7 @@ pub fn profile_text(g: &Graph, p: &Profile, per_node: Option<&std::path::Path>) 
         let text = match (&f.method, &f.interval) {
             (Method::Bounds { .. }, Some(iv)) => format!(
                 "between {} and {} for certain (double-sweep bound, then iFUB stopped at the \
-                 --exact-within budget after {} BFS runs)",
+                 --diameter-within budget after {} BFS runs)",
                 iv.low,
                 iv.high,
                 count(dm.bfs_runs)
