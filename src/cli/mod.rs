@@ -652,7 +652,11 @@ pub fn run(args: Args) -> Result<ExitCode, Error> {
         Command::Intake { input, json } => {
             guard(json.as_deref(), &input.input)?;
             let g = ingest::load(&input.input, &input.options(), &bars)?;
-            emit(json.as_deref(), || show::intake_json(&g), || show::intake_text(&g))?;
+            emit(
+                json.as_deref(),
+                || show::intake_json(&g),
+                || show::intake_text(&g),
+            )?;
         }
         Command::Pack { input, out } => {
             guard(Some(&out), &input.input)?;

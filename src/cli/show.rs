@@ -37,8 +37,42 @@ pub fn bytes(b: u64) -> String {
     }
 }
 
+/// Columns a row's text may take, so that reports fit a 100-column terminal.
+const TEXT_WIDTH: usize = 87;
+
+/// A labelled row; long text continues on indented lines, broken between " · " parts where it
+/// can and between words otherwise.
 fn row(out: &mut String, label: &str, text: impl AsRef<str>) {
-    let _ = writeln!(out, "  {label:<11}{}", text.as_ref());
+    let mut lines: Vec<String> = vec![String::new()];
+    for part in text.as_ref().split(" · ") {
+        let last = lines.last_mut().expect("one line");
+        let joined = if last.is_empty() {
+            part.chars().count()
+        } else {
+            last.chars().count() + 3 + part.chars().count()
+        };
+        if joined <= TEXT_WIDTH || last.is_empty() {
+            if !last.is_empty() {
+                last.push_str(" · ");
+            }
+            last.push_str(part);
+        } else {
+            lines.push(part.to_string());
+        }
+    }
+    let lines: Vec<String> = lines
+        .into_iter()
+        .flat_map(|l| {
+            if l.chars().count() > TEXT_WIDTH {
+                wrap(&l, TEXT_WIDTH)
+            } else {
+                vec![l]
+            }
+        })
+        .collect();
+    for (i, l) in lines.iter().enumerate() {
+        let _ = writeln!(out, "  {:<11}{l}", if i == 0 { label } else { "" });
+    }
 }
 
 pub fn intake_text(g: &Graph) -> String {
