@@ -24,6 +24,12 @@ pub struct Platform {
     pub self_reply: f64,
     /// Pareto shape of member activity (smaller: more skewed).
     pub activity_shape: f64,
+    /// The week (counted from 0 = 2026-W40) the invented platform launches its "trending
+    /// threads" feed, after which members reply outside their circles more often: the planted
+    /// structural change of the demo series.
+    pub feed_launch_week: Option<u32>,
+    /// Share of replies outside one's circles from that week on.
+    pub outside_reply_after_launch: f64,
 }
 
 impl Default for Platform {
@@ -35,6 +41,8 @@ impl Default for Platform {
             outside_reply: 0.08,
             self_reply: 0.004,
             activity_shape: 1.6,
+            feed_launch_week: Some(3),
+            outside_reply_after_launch: 0.16,
         }
     }
 }
@@ -96,6 +104,10 @@ pub fn weekly_export(p: &Platform, seed: u64, week: u32) -> Vec<u8> {
     let mut rng =
         ChaCha8Rng::seed_from_u64(seed ^ (0x9E37_79B9_7F4A_7C15u64.wrapping_mul(week as u64 + 1)));
     let start = WEEK0_START + week as u64 * WEEK;
+    let outside = match p.feed_launch_week {
+        Some(w) if week >= w => p.outside_reply_after_launch,
+        _ => p.outside_reply,
+    };
     let mut times: Vec<u64> = (0..p.replies_per_week)
         .map(|_| start + rng.random_range(0..WEEK))
         .collect();
@@ -118,7 +130,7 @@ pub fn weekly_export(p: &Platform, seed: u64, week: u32) -> Vec<u8> {
             // Redraw a few times when the draw lands on the replier; rare self-loops remain.
             let mut b = a;
             for _ in 0..4 {
-                b = if rng.random::<f64>() < p.outside_reply || member_circles[a].is_empty() {
+                b = if rng.random::<f64>() < outside || member_circles[a].is_empty() {
                     pick(&cum_all, &mut rng)
                 } else {
                     let c = member_circles[a][rng.random_range(0..member_circles[a].len())];

@@ -10,7 +10,7 @@ use crate::profile::Distances;
 use crate::report::Report;
 use crate::svg::{Axis, Guide, Mark, Point, Series, chart, esc};
 
-const STYLE: &str = r#"
+pub const STYLE: &str = r#"
 :root { --ink: #1c2630; --soft: #5b6770; --rule: #d5d9dc; --paper: #fbfaf7; --a: #7a3b1d; --b: #2f5d62; --c: #6b6b6b; }
 * { box-sizing: border-box; }
 body { margin: 0; background: var(--paper); color: var(--ink); font: 15px/1.45 system-ui, -apple-system, "Segoe UI", sans-serif; }

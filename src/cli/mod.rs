@@ -56,6 +56,50 @@ enum Command {
         #[command(flatten)]
         plan: PlanArgs,
     },
+    /// Profile a new export, add it to a history directory, and compare it with the previous
+    /// snapshot and the pinned baseline; exits 6 when a significant change beyond its
+    /// threshold is found.
+    Track {
+        /// The history directory (created on first use).
+        history: PathBuf,
+        #[command(flatten)]
+        input: InputArgs,
+        /// The snapshot's label, e.g. a date (default: the input's file name).
+        #[arg(long)]
+        label: Option<String>,
+        /// Make this snapshot the baseline later ones are also compared with.
+        #[arg(long)]
+        pin: bool,
+        /// Add the input even if the history already holds the same file (same checksum).
+        #[arg(long)]
+        again: bool,
+        #[command(flatten)]
+        check: CheckArgs,
+        #[command(flatten)]
+        plan: PlanArgs,
+    },
+    /// Compare two profiles or two graphs (profiled first; then also node and edge churn by
+    /// original id); exits 6 when a significant change beyond its threshold is found.
+    Compare {
+        /// Earlier profile report (.json) or graph file.
+        before: PathBuf,
+        /// Later profile report (.json) or graph file.
+        after: PathBuf,
+        #[command(flatten)]
+        check: CheckArgs,
+        #[command(flatten)]
+        plan: PlanArgs,
+    },
+    /// Write a history's trend page: each figure over time with its interval band, alerts
+    /// marked.
+    Trend {
+        history: PathBuf,
+        /// The HTML file to write.
+        #[arg(short = 'o', long = "out", value_name = "FILE")]
+        out: PathBuf,
+        #[command(flatten)]
+        check: CheckArgs,
+    },
     /// Print the JSON Schema of the profile report.
     Schema,
     /// Read an edge file and show what was read: sizes, cleaning counts, degrees, timings.
@@ -186,6 +230,21 @@ enum SynthModel {
     /// (internal) A generator model with its parameters gathered.
     #[command(skip)]
     Generated(plumb::generate::Model),
+}
+
+/// How changes are judged.
+#[derive(ClapArgs, Debug)]
+struct CheckArgs {
+    /// Family-wise confidence level of the change tests (split over the estimated figures).
+    #[arg(long = "alert-level", value_name = "LEVEL", default_value = "99%", value_parser = parse_fraction)]
+    alert_level: f64,
+    /// Minimum effects worth an alert, e.g. transitivity=0.02,mean-distance=5% (absolute, or
+    /// relative with %); others keep their defaults (see the README).
+    #[arg(long, value_name = "FIGURE=MIN", value_delimiter = ',', value_parser = plumb::drift::parse_threshold)]
+    alert_on: Vec<(String, plumb::drift::Threshold)>,
+    /// Write the verdict as JSON to FILE (`-`: print it instead of the text).
+    #[arg(long = "verdict-json", value_name = "FILE")]
+    verdict_json: Option<PathBuf>,
 }
 
 /// How each figure group is computed: exact within a time budget, or estimated to a margin.
@@ -426,6 +485,179 @@ pub fn exit_code(e: &Error) -> ExitCode {
     }
 }
 
+/// Exit code when a change alert fired (track, compare).
+pub const EXIT_ALERT: u8 = 6;
+
+fn looks_like_report(path: &std::path::Path) -> bool {
+    path.extension().is_some_and(|e| e == "json")
+}
+
+fn load_side(
+    path: &std::path::Path,
+    plan: &PlanArgs,
+    bars: &bars::Bars,
+) -> Result<(plumb::report::Report, Option<plumb::Graph>), Error> {
+    if looks_like_report(path) {
+        let r = plumb::history::read_report(path).map_err(|problem| Error::Output {
+            path: path.to_path_buf(),
+            problem,
+        })?;
+        return Ok((r, None));
+    }
+    let opts = plan.options();
+    let g = ingest::load(path, &LoadOptions::default(), bars)?;
+    let (p, _) = plumb::profile::profile(&g, &opts, bars);
+    let r = plumb::report::Report::new(p, Some(path), &opts)?;
+    Ok((r, Some(g)))
+}
+
+fn verdict_out(
+    check: &CheckArgs,
+    json: impl FnOnce() -> String,
+    text: impl FnOnce() -> String,
+) -> Result<(), Error> {
+    emit(check.verdict_json.as_deref(), json, text)
+}
+
+fn compare(
+    before: &std::path::Path,
+    after: &std::path::Path,
+    check: &CheckArgs,
+    plan: &PlanArgs,
+    bars: &bars::Bars,
+) -> Result<ExitCode, Error> {
+    let (ra, ga) = load_side(before, plan, bars)?;
+    let (rb, gb) = load_side(after, plan, bars)?;
+    let d = plumb::drift::compare(
+        &ra,
+        &rb,
+        (&before.display().to_string(), &after.display().to_string()),
+        check.alert_level,
+        &check.alert_on,
+    );
+    let churn = match (&ga, &gb) {
+        (Some(a), Some(b)) => Some(plumb::drift::churn(a, b)),
+        _ => None,
+    };
+    verdict_out(
+        check,
+        || {
+            show::to_json(
+                "comparison",
+                &serde_json::json!({"drift": d, "churn": churn}),
+            )
+        },
+        || show::drift_text(&d, churn.as_ref()),
+    )?;
+    Ok(if d.alerts > 0 {
+        ExitCode::from(EXIT_ALERT)
+    } else {
+        ExitCode::SUCCESS
+    })
+}
+
+#[allow(clippy::too_many_arguments)]
+fn track(
+    dir: &std::path::Path,
+    input: &InputArgs,
+    label: Option<String>,
+    pin: bool,
+    again: bool,
+    check: &CheckArgs,
+    plan: &PlanArgs,
+    bars: &bars::Bars,
+) -> Result<ExitCode, Error> {
+    let _lock = plumb::history::lock(dir, std::time::Duration::from_secs(600))?;
+    let mut h = plumb::history::History::open(dir)?;
+    for p in &h.problems {
+        eprintln!("plumb: {}: {}: {}", dir.display(), p.file, p.what);
+    }
+    let source = (input.input.as_os_str() != "-").then_some(input.input.as_path());
+    if let Some(path) = source {
+        let (_, sum) = plumb::report::checksum(path)?;
+        if let Some(e) = h.find_input(&sum)
+            && !again
+        {
+            return Err(Error::Parameters {
+                problem: format!(
+                    "{} is already in the history as snapshot {} ({}), same checksum {sum}; \
+                     add it again with --again",
+                    path.display(),
+                    e.seq,
+                    e.label
+                ),
+            });
+        }
+    }
+    let opts = plan.options();
+    let g = ingest::load(&input.input, &input.options(), bars)?;
+    let (p, _) = plumb::profile::profile(&g, &opts, bars);
+    let report = plumb::report::Report::new(p, source, &opts)?;
+    let previous = h.latest().map(|(e, r)| (e.clone(), r));
+    let baseline = h.baseline().map(|(e, r)| (e.clone(), r));
+    let label = label.unwrap_or_else(|| {
+        input
+            .input
+            .file_name()
+            .map_or("stdin".into(), |n| n.to_string_lossy().into_owned())
+    });
+    let entry = h.add(&report, &label, pin)?;
+    let name = |e: &plumb::history::Entry| format!("#{} {}", e.seq, e.label);
+    let mut drifts = Vec::new();
+    if let Some((e, r)) = &previous {
+        drifts.push(plumb::drift::compare(
+            r,
+            &report,
+            (&name(e), &name(&entry)),
+            check.alert_level,
+            &check.alert_on,
+        ));
+    }
+    if let Some((e, r)) = &baseline
+        && previous.as_ref().is_none_or(|(p, _)| p.seq != e.seq)
+    {
+        drifts.push(plumb::drift::compare(
+            r,
+            &report,
+            (&name(e), &name(&entry)),
+            check.alert_level,
+            &check.alert_on,
+        ));
+    }
+    let alerts: usize = drifts.iter().map(|d| d.alerts).sum();
+    verdict_out(
+        check,
+        || {
+            show::to_json(
+                "track",
+                &serde_json::json!({"added": {"seq": entry.seq, "label": entry.label, "file": entry.file}, "comparisons": drifts, "alerts": alerts}),
+            )
+        },
+        || {
+            let mut t = format!(
+                "plumb track · {} · added snapshot #{} \"{}\" ({} nodes, {} edges)\n",
+                dir.display(),
+                entry.seq,
+                entry.label,
+                report.profile.degrees.nodes,
+                report.profile.degrees.edges
+            );
+            if drifts.is_empty() {
+                t.push_str("  first snapshot: it is the baseline; nothing to compare yet\n");
+            }
+            for d in &drifts {
+                t.push_str(&show::drift_text(d, None));
+            }
+            t
+        },
+    )?;
+    Ok(if alerts > 0 {
+        ExitCode::from(EXIT_ALERT)
+    } else {
+        ExitCode::SUCCESS
+    })
+}
+
 /// Refuse an output path that names the input file: inputs are never modified.
 fn guard(out: Option<&std::path::Path>, input: &std::path::Path) -> Result<(), Error> {
     let Some(out) = out else { return Ok(()) };
@@ -649,6 +881,39 @@ pub fn run(args: Args) -> Result<ExitCode, Error> {
             }
         }
         Command::Schema => print!("{}", plumb::report::schema_json()),
+        Command::Track {
+            history,
+            input,
+            label,
+            pin,
+            again,
+            check,
+            plan,
+        } => return track(&history, &input, label, pin, again, &check, &plan, &bars),
+        Command::Compare {
+            before,
+            after,
+            check,
+            plan,
+        } => return compare(&before, &after, &check, &plan, &bars),
+        Command::Trend {
+            history,
+            out,
+            check,
+        } => {
+            let h = plumb::history::History::open(&history)?;
+            for p in &h.problems {
+                eprintln!("plumb: {}: {}: {}", history.display(), p.file, p.what);
+            }
+            let page = plumb::trend::page(&h, check.alert_level, &check.alert_on);
+            plumb::outfile::write_atomic(&out, page.as_bytes())?;
+            println!(
+                "wrote {}: {} snapshots of {}",
+                out.display(),
+                h.index.entries.len(),
+                history.display()
+            );
+        }
         Command::Intake { input, json } => {
             guard(json.as_deref(), &input.input)?;
             let g = ingest::load(&input.input, &input.options(), &bars)?;

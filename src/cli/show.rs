@@ -611,6 +611,82 @@ pub fn sweep_text(s: &plumb::sweep::Sweep) -> String {
     out
 }
 
+pub fn drift_text(d: &plumb::drift::Drift, churn: Option<&plumb::drift::ExactChurn>) -> String {
+    let mut out = String::new();
+    let _ = writeln!(
+        out,
+        "  ── {} → {} ({} alert{}; {})",
+        d.before,
+        d.after,
+        d.alerts,
+        if d.alerts == 1 { "" } else { "s" },
+        if d.tested == 0 {
+            "every figure exact: any difference is real, thresholds decide".to_string()
+        } else {
+            format!(
+                "{} estimated figures tested at {:.0}% family-wise",
+                d.tested,
+                100.0 * d.level
+            )
+        }
+    );
+    for c in &d.changes {
+        let diff = &c.difference;
+        let iv = match (&diff.method, diff.interval) {
+            (Method::Estimate { .. }, Some(iv)) => {
+                format!(" (interval {:+.4} to {:+.4})", iv.low, iv.high)
+            }
+            _ => " (exact)".to_string(),
+        };
+        let mark = if c.alert {
+            "ALERT"
+        } else if c.significant {
+            "change"
+        } else {
+            "same"
+        };
+        let min = match c.threshold {
+            plumb::drift::Threshold::Absolute(t) => format!("min {t}"),
+            plumb::drift::Threshold::Relative(t) => format!("min {}%", 100.0 * t),
+        };
+        row(
+            &mut out,
+            mark,
+            format!(
+                "{}: {} → {} · {:+.4}{iv} · {min}",
+                c.label,
+                short(c.before),
+                short(c.after),
+                diff.value
+            ),
+        );
+    }
+    if let Some(ch) = churn {
+        row(
+            &mut out,
+            "churn",
+            format!(
+                "nodes +{} −{} ({} kept) · edges +{} −{} ({} kept), by original id",
+                count(ch.nodes_appeared),
+                count(ch.nodes_vanished),
+                count(ch.nodes_kept),
+                count(ch.edges_appeared),
+                count(ch.edges_vanished),
+                count(ch.edges_kept)
+            ),
+        );
+    }
+    out
+}
+
+fn short(v: f64) -> String {
+    if v.fract() == 0.0 && v.abs() < 1e15 {
+        count(v.abs() as u64).to_string() + if v < 0.0 { " (negative)" } else { "" }
+    } else {
+        format!("{v:.4}")
+    }
+}
+
 pub fn intake_json(g: &Graph) -> String {
     #[derive(serde::Serialize)]
     struct Out<'a> {
