@@ -9,7 +9,9 @@ const W: f64 = 560.0;
 const H: f64 = 330.0;
 const LEFT: f64 = 64.0;
 const RIGHT: f64 = 16.0;
-const TOP: f64 = 40.0;
+/// Top margin without a legend; each legend row adds `LEGEND_ROW`.
+const TOP0: f64 = 40.0;
+const LEGEND_ROW: f64 = 15.0;
 const BOTTOM: f64 = 52.0;
 
 /// One axis: its range, scale and label (with units).
@@ -171,11 +173,13 @@ fn tick_text(v: f64, log: bool) -> String {
         return "0".into();
     }
     let a = v.abs();
-    if (0.01..100_000.0).contains(&a) {
-        let s = format!("{v:.4}");
+    if v.fract() == 0.0 && a < 1e12 {
+        format!("{v:.0}")
+    } else if (1e-4..1e12).contains(&a) {
+        let s = format!("{v:.6}");
         s.trim_end_matches('0').trim_end_matches('.').to_string()
     } else {
-        format!("{v:.1e}")
+        format!("{v:.2e}")
     }
 }
 
@@ -209,14 +213,18 @@ pub fn chart(
     series: &[Series],
     guides: &[Guide],
 ) -> String {
+    // The legend gets rows of its own above the plot, so it never hides a point.
+    let legend_rows = if series.len() > 1 { series.len() } else { 0 };
+    let top = TOP0 + LEGEND_ROW * legend_rows as f64;
+    let h = H + LEGEND_ROW * legend_rows as f64;
     let pw = W - LEFT - RIGHT;
-    let ph = H - TOP - BOTTOM;
+    let ph = h - top - BOTTOM;
     let sx = |v: f64| LEFT + x.frac(v).clamp(-0.02, 1.02) * pw;
-    let sy = |v: f64| TOP + (1.0 - y.frac(v).clamp(-0.02, 1.02)) * ph;
+    let sy = |v: f64| top + (1.0 - y.frac(v).clamp(-0.02, 1.02)) * ph;
     let mut out = String::new();
     let _ = write!(
         out,
-        r#"<svg class="chart" id="{id}" viewBox="0 0 {W} {H}" role="img" aria-labelledby="{id}-t {id}-d" xmlns="http://www.w3.org/2000/svg"><title id="{id}-t">{}</title><desc id="{id}-d">{}</desc>"#,
+        r#"<svg class="chart" id="{id}" viewBox="0 0 {W} {h}" role="img" aria-labelledby="{id}-t {id}-d" xmlns="http://www.w3.org/2000/svg"><title id="{id}-t">{}</title><desc id="{id}-d">{}</desc>"#,
         esc(title),
         esc(description)
     );
@@ -228,7 +236,7 @@ pub fn chart(
     // Frame, grid and ticks.
     let _ = write!(
         out,
-        r#"<rect class="frame" x="{LEFT}" y="{TOP}" width="{pw}" height="{ph}"/>"#
+        r#"<rect class="frame" x="{LEFT}" y="{top}" width="{pw}" height="{ph}"/>"#
     );
     let xt: Vec<(f64, String)> = if x.names.is_empty() {
         x.ticks()
@@ -242,9 +250,9 @@ pub fn chart(
         let px = sx(t);
         let _ = write!(
             out,
-            r#"<line class="grid" x1="{px:.1}" y1="{TOP}" x2="{px:.1}" y2="{:.1}"/><text class="tk" x="{px:.1}" y="{:.1}" text-anchor="middle">{}</text>"#,
-            TOP + ph,
-            TOP + ph + 16.0,
+            r#"<line class="grid" x1="{px:.1}" y1="{top}" x2="{px:.1}" y2="{:.1}"/><text class="tk" x="{px:.1}" y="{:.1}" text-anchor="middle">{}</text>"#,
+            top + ph,
+            top + ph + 16.0,
             esc(&text)
         );
     }
@@ -263,9 +271,9 @@ pub fn chart(
         out,
         r#"<text class="al" x="{:.1}" y="{:.1}" text-anchor="middle">{}</text><text class="al" transform="translate(16 {:.1}) rotate(-90)" text-anchor="middle">{}</text>"#,
         LEFT + pw / 2.0,
-        H - 12.0,
+        h - 12.0,
         esc(&x.label),
-        TOP + ph / 2.0,
+        top + ph / 2.0,
         esc(&y.label)
     );
     for g in guides {
@@ -324,12 +332,11 @@ pub fn chart(
         }
         out.push_str("</g>");
     }
-    // Legend, bottom right, with the same markers.
-    if series.len() > 1 {
-        let n = series.len();
+    // Legend in rows of its own between the title and the plot, with the same markers.
+    if legend_rows > 0 {
         for (i, s) in series.iter().enumerate() {
-            let ly = TOP + ph - 8.0 - 16.0 * (n - 1 - i) as f64;
-            let lx = LEFT + pw - 170.0;
+            let ly = TOP0 - 4.0 + LEGEND_ROW * i as f64;
+            let lx = LEFT + 8.0;
             let _ = write!(out, r#"<g class="series s{i} legend">"#);
             marker(&mut out, s.mark, lx, ly - 4.0);
             let _ = write!(

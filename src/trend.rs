@@ -33,7 +33,22 @@ pub fn page(h: &History, level: f64, thresholds: &[(String, Threshold)]) -> Stri
             .collect();
     }
     let mut charts = String::new();
-    for (key, label, _) in FIGURES {
+    // Structure first, then size.
+    let order = [
+        "transitivity",
+        "average-clustering",
+        "mean-distance",
+        "effective-diameter",
+        "giant-share",
+        "nodes",
+        "edges",
+        "mean-degree",
+        "components",
+    ];
+    for key in order {
+        let Some((key, label, _)) = FIGURES.iter().find(|f| f.0 == key) else {
+            continue;
+        };
         let mut normal = Vec::new();
         let mut flagged = Vec::new();
         for (i, (_, r)) in snaps.iter().enumerate() {

@@ -139,7 +139,7 @@ fn the_demo_series_alerts_on_the_planted_week_only() {
             // Against the previous week (also after the launch): no alert; against the baseline:
             // the fall in clustering.
             let first = text.split("── ").nth(1).unwrap();
-            assert!(first.contains("(0 alerts"), "W{w}: {text}");
+            assert!(first.contains("verdict    0 alerts"), "W{w}: {text}");
             let second = text.split("── ").nth(2).unwrap();
             assert!(second.contains("ALERT      transitivity"), "W{w}: {text}");
         }

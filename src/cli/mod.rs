@@ -21,7 +21,7 @@ pub const EXIT_BUDGET: u8 = 5;
     version,
     about = "Structure profiles of very large undirected networks, straight from edge-list dumps",
     after_help = "Exit codes: 0 success, 2 bad arguments, 3 bad input, 4 I/O failure, \
-                  5 over the memory budget."
+                  5 over the memory budget, 6 a change alert fired (track, compare)."
 )]
 pub struct Args {
     /// Worker threads (default: all cores).
@@ -167,8 +167,8 @@ enum Command {
         out: PathBuf,
         #[arg(long, default_value_t = 20261002)]
         seed: u64,
-        /// How many weekly exports to write.
-        #[arg(long, default_value_t = 1)]
+        /// How many weekly exports to write (from 2026-W40).
+        #[arg(long, default_value_t = 6)]
         weeks: u32,
     },
 }

@@ -613,22 +613,24 @@ pub fn sweep_text(s: &plumb::sweep::Sweep) -> String {
 
 pub fn drift_text(d: &plumb::drift::Drift, churn: Option<&plumb::drift::ExactChurn>) -> String {
     let mut out = String::new();
-    let _ = writeln!(
-        out,
-        "  ── {} → {} ({} alert{}; {})",
-        d.before,
-        d.after,
-        d.alerts,
-        if d.alerts == 1 { "" } else { "s" },
-        if d.tested == 0 {
-            "every figure exact: any difference is real, thresholds decide".to_string()
-        } else {
-            format!(
-                "{} estimated figures tested at {:.0}% family-wise",
-                d.tested,
-                100.0 * d.level
-            )
-        }
+    let _ = writeln!(out, "  ── {} → {}", d.before, d.after);
+    row(
+        &mut out,
+        "verdict",
+        format!(
+            "{} alert{} · {}",
+            d.alerts,
+            if d.alerts == 1 { "" } else { "s" },
+            if d.tested == 0 {
+                "every figure exact: any difference is real, thresholds decide".to_string()
+            } else {
+                format!(
+                    "{} estimated figures tested at {:.0}% family-wise",
+                    d.tested,
+                    100.0 * d.level
+                )
+            }
+        ),
     );
     for c in &d.changes {
         let diff = &c.difference;
@@ -653,11 +655,15 @@ pub fn drift_text(d: &plumb::drift::Drift, churn: Option<&plumb::drift::ExactChu
             &mut out,
             mark,
             format!(
-                "{}: {} → {} · {:+.4}{iv} · {min}",
+                "{}: {} → {} · {}{iv} · {min}",
                 c.label,
                 short(c.before),
                 short(c.after),
-                diff.value
+                if diff.value.fract() == 0.0 {
+                    format!("{:+}", diff.value as i64)
+                } else {
+                    format!("{:+.4}", diff.value)
+                }
             ),
         );
     }
