@@ -63,6 +63,12 @@ pub struct Report {
     pub input: InputFile,
     pub settings: Settings,
     pub profile: Profile,
+    /// HyperLogLog++ sketches of the node ids and edges by original id (precision 14, hash seed
+    /// 0), so that two reports can be compared for churn without their input files. Absent when
+    /// not computed. Layout: the `hyperloglogplus` crate's serde form, wrapped by plumb.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    #[schemars(with = "Option<serde_json::Value>")]
+    pub ids: Option<crate::sketch::IdSketch>,
 }
 
 /// Size and XXH3-64 of a file, read through a memory map (the checksum runs at memory speed).
@@ -111,7 +117,18 @@ impl Report {
                 threads: opts.threads,
             },
             profile,
+            ids: None,
         })
+    }
+
+    /// Attach the id sketches of `g` (the graph this report profiles).
+    pub fn with_sketch(mut self, g: &crate::Graph) -> Report {
+        self.ids = Some(crate::sketch::IdSketch::of_graph(
+            g,
+            crate::sketch::DEFAULT_PRECISION,
+            0,
+        ));
+        self
     }
 }
 

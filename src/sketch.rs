@@ -203,6 +203,20 @@ impl IdSketch {
     }
 }
 
+impl PartialEq for IdSketch {
+    /// Equal parameters, exact counts and estimates (the crate's sketches have no equality).
+    fn eq(&self, other: &Self) -> bool {
+        (self.precision, self.seed, self.node_count, self.edge_count)
+            == (
+                other.precision,
+                other.seed,
+                other.node_count,
+                other.edge_count,
+            )
+            && self.counts() == other.counts()
+    }
+}
+
 #[cfg(test)]
 mod tests {
     use super::*;

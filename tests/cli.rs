@@ -273,11 +273,18 @@ fn shipped_demo_data_is_what_the_generator_writes() {
     // files byte for byte (the monitoring demo relies on the planted week being where it is).
     let dir = tempfile::tempdir().unwrap();
     let out = plumb(&["demo-data", "--out", dir.path().to_str().unwrap()]);
-    assert!(out.status.success(), "{}", String::from_utf8_lossy(&out.stderr));
+    assert!(
+        out.status.success(),
+        "{}",
+        String::from_utf8_lossy(&out.stderr)
+    );
     for w in 40..=45 {
         let name = format!("replies-2026-W{w}.tsv.zst");
         let shipped = std::fs::read(format!("demo-data/larkspur/{name}")).unwrap();
         let rebuilt = std::fs::read(dir.path().join(&name)).unwrap();
-        assert!(shipped == rebuilt, "{name} differs from the generator's output");
+        assert!(
+            shipped == rebuilt,
+            "{name} differs from the generator's output"
+        );
     }
 }

@@ -284,3 +284,53 @@ fn concurrent_adds_both_land() {
     assert!(opened.problems.is_empty());
     assert!(!h.join("lock").exists(), "the lock is released");
 }
+
+#[test]
+fn churn_from_two_reports_estimates_the_exact_churn() {
+    // Two JSON reports carry id sketches; their churn estimate must cover the exact churn of
+    // the two files (HyperLogLog++, Heule, Nunkesser & Hall 2013; 2^14 registers).
+    let dir = tempfile::tempdir().unwrap();
+    let (a, b) = (dir.path().join("a.json"), dir.path().join("b.json"));
+    for (w, p) in [(40, &a), (41, &b)] {
+        let out = plumb(&[
+            "profile",
+            &week(w),
+            "--figures",
+            "clustering",
+            "--json",
+            p.to_str().unwrap(),
+        ]);
+        assert!(out.status.success());
+    }
+    let exact = plumb(&[
+        "compare",
+        &week(40),
+        &week(41),
+        "--figures",
+        "clustering",
+        "--verdict-json",
+        "-",
+    ]);
+    let exact: serde_json::Value = serde_json::from_slice(&exact.stdout).unwrap();
+    let est = plumb(&[
+        "compare",
+        a.to_str().unwrap(),
+        b.to_str().unwrap(),
+        "--verdict-json",
+        "-",
+    ]);
+    let est: serde_json::Value = serde_json::from_slice(&est.stdout).unwrap();
+    let e = &est["comparison"]["estimated_churn"];
+    for (key, exact_key) in [
+        ("appeared_edges", "edges_appeared"),
+        ("vanished_edges", "edges_vanished"),
+        ("appeared_nodes", "nodes_appeared"),
+    ] {
+        let x = exact["comparison"]["churn"][exact_key].as_f64().unwrap();
+        let (lo, hi) = (
+            e[key]["interval"]["low"].as_f64().unwrap(),
+            e[key]["interval"]["high"].as_f64().unwrap(),
+        );
+        assert!(lo <= x && x <= hi, "{key}: exact {x} outside {lo}..{hi}");
+    }
+}

@@ -539,15 +539,26 @@ fn compare(
         (Some(a), Some(b)) => Some(plumb::drift::churn(a, b)),
         _ => None,
     };
+    // Without both graphs, the reports' id sketches estimate the churn.
+    let estimated = match (&churn, &ra.ids, &rb.ids) {
+        (None, Some(a), Some(b)) => a.churn(b, check.alert_level).ok(),
+        _ => None,
+    };
     verdict_out(
         check,
         || {
             show::to_json(
                 "comparison",
-                &serde_json::json!({"drift": d, "churn": churn}),
+                &serde_json::json!({"drift": d, "churn": churn, "estimated_churn": estimated}),
             )
         },
-        || show::drift_text(&d, churn.as_ref()),
+        || {
+            let mut t = show::drift_text(&d, churn.as_ref());
+            if let Some(e) = &estimated {
+                t.push_str(&show::sketch_churn_text(e));
+            }
+            t
+        },
     )?;
     Ok(if d.alerts > 0 {
         ExitCode::from(EXIT_ALERT)
@@ -592,7 +603,7 @@ fn track(
     let opts = plan.options();
     let g = ingest::load(&input.input, &input.options(), bars)?;
     let (p, _) = plumb::profile::profile(&g, &opts, bars);
-    let report = plumb::report::Report::new(p, source, &opts)?;
+    let report = plumb::report::Report::new(p, source, &opts)?.with_sketch(&g);
     let previous = h.latest().map(|(e, r)| (e.clone(), r));
     let baseline = h.baseline().map(|(e, r)| (e.clone(), r));
     let label = label.unwrap_or_else(|| {
@@ -625,12 +636,20 @@ fn track(
         ));
     }
     let alerts: usize = drifts.iter().map(|d| d.alerts).sum();
+    // Churn against the previous snapshot, from the id sketches both reports carry.
+    let churn = match (&previous, &report.ids) {
+        (Some((_, r)), Some(now)) => r
+            .ids
+            .as_ref()
+            .and_then(|before| before.churn(now, check.alert_level).ok()),
+        _ => None,
+    };
     verdict_out(
         check,
         || {
             show::to_json(
                 "track",
-                &serde_json::json!({"added": {"seq": entry.seq, "label": entry.label, "file": entry.file}, "comparisons": drifts, "alerts": alerts}),
+                &serde_json::json!({"added": {"seq": entry.seq, "label": entry.label, "file": entry.file}, "comparisons": drifts, "estimated_churn_since_previous": churn, "alerts": alerts}),
             )
         },
         || {
@@ -645,8 +664,13 @@ fn track(
             if drifts.is_empty() {
                 t.push_str("  first snapshot: it is the baseline; nothing to compare yet\n");
             }
-            for d in &drifts {
+            for (i, d) in drifts.iter().enumerate() {
                 t.push_str(&show::drift_text(d, None));
+                if i == 0
+                    && let Some(c) = &churn
+                {
+                    t.push_str(&show::sketch_churn_text(c));
+                }
             }
             t
         },
@@ -846,7 +870,11 @@ pub fn run(args: Args) -> Result<ExitCode, Error> {
                 plumb::pernode::write(&g, &table, path)?;
             }
             let source = (input.input.as_os_str() != "-").then_some(input.input.as_path());
-            let report = plumb::report::Report::new(p, source, &opts)?;
+            let mut report = plumb::report::Report::new(p, source, &opts)?;
+            if json.is_some() {
+                // JSON reports are kept and compared later: carry the id sketches for churn.
+                report = report.with_sketch(&g);
+            }
             let json_text = || {
                 let mut s = serde_json::to_string_pretty(&report).unwrap_or_default();
                 s.push('\n');

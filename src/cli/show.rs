@@ -685,6 +685,32 @@ pub fn drift_text(d: &plumb::drift::Drift, churn: Option<&plumb::drift::ExactChu
     out
 }
 
+pub fn sketch_churn_text(c: &plumb::sketch::Churn) -> String {
+    let mut out = String::new();
+    let f = |x: &Figure| match x.interval {
+        Some(iv) => format!(
+            "{} ({}–{})",
+            count(x.value.round() as u64),
+            count(iv.low.max(0.0).round() as u64),
+            count(iv.high.round() as u64)
+        ),
+        None => count(x.value.round() as u64),
+    };
+    row(
+        &mut out,
+        "churn",
+        format!(
+            "nodes +{} −{} · edges +{} −{} (estimated from the reports' id sketches, {:.0}% intervals)",
+            f(&c.appeared_nodes),
+            f(&c.vanished_nodes),
+            f(&c.appeared_edges),
+            f(&c.vanished_edges),
+            100.0 * c.appeared_nodes.interval.map_or(0.95, |i| i.level)
+        ),
+    );
+    out
+}
+
 fn short(v: f64) -> String {
     if v.fract() == 0.0 && v.abs() < 1e15 {
         count(v.abs() as u64).to_string() + if v < 0.0 { " (negative)" } else { "" }
