@@ -48,6 +48,7 @@ fn bench(name: &str, g: &Csr) {
         );
     }
     let sub = induced(g, &giant);
+    // A 20 s search budget (the profile's own default for the diameter is 1 s).
     let budget = plumb::profile::DEFAULT_EXACT_SECONDS
         * plumb::plan::REFERENCE_RATES.bfs_words
         * rayon::current_num_threads() as f64;
