@@ -6,6 +6,8 @@
 //! Needs Debian's `chromium` (CI installs it). Without it the test says so and passes, unless
 //! `PLUMB_REQUIRE_BROWSER=1` (set by CI), where a missing browser fails it.
 
+mod common;
+
 use std::path::{Path, PathBuf};
 use std::process::Command;
 
@@ -126,20 +128,7 @@ fn demo_report_renders_in_chromium_without_errors_or_requests() {
         &page,
     );
     let dom = String::from_utf8(dom.stdout).unwrap();
-    for id in [
-        "degree-ccdf",
-        "clustering-by-degree",
-        "distance-distribution",
-        "small-world-plane",
-        "small-world-coefficients",
-    ] {
-        let start = dom
-            .find(&format!("id=\"{id}\""))
-            .unwrap_or_else(|| panic!("chart {id} missing from the DOM"));
-        let end = start + dom[start..].find("</svg>").unwrap();
-        let points = dom[start..end].matches("class=\"pt\"").count();
-        assert!(points > 0, "chart {id} is an empty frame");
-    }
+    common::assert_charts_have_points(&dom);
 }
 
 #[test]

@@ -1,26 +1,22 @@
 //! Monitoring: change tests that do not cry wolf on sampling noise and do catch a planted change,
 //! a history that survives crashes, corruption and concurrent runs, and the commands end to end.
 
+mod common;
+
 use std::process::Command;
+
+use common::graph_of;
 
 use plumb::Graph;
 use plumb::csr::Csr;
 use plumb::drift::{Threshold, compare};
 use plumb::generate;
-use plumb::graph::NodeIds;
-use plumb::intake::Intake;
 use plumb::plan::Choice;
 use plumb::profile::{Groups, ProfileOptions, profile};
 use plumb::report::Report;
 
 fn graph(csr: Csr) -> Graph {
-    let n = csr.node_count();
-    let m = csr.edge_count();
-    Graph {
-        csr,
-        ids: NodeIds::Range { first: 0, len: n },
-        intake: Intake::generated("test", n as u64, m, 0),
-    }
+    graph_of(csr)
 }
 
 fn estimated(g: &Graph, seed: u64, groups: Groups, margin: f64) -> Report {

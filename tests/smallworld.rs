@@ -8,19 +8,11 @@ use common::*;
 use plumb::Graph;
 use plumb::csr::Csr;
 use plumb::generate;
-use plumb::graph::NodeIds;
-use plumb::intake::Intake;
 use plumb::profile::{Profile, ProfileOptions, profile};
 use plumb::smallworld::{self, Coefficients};
 
 fn graph(csr: Csr) -> Graph {
-    let n = csr.node_count();
-    let m = csr.edge_count();
-    Graph {
-        csr,
-        ids: NodeIds::Range { first: 0, len: n },
-        intake: Intake::generated("test", n as u64, m, 0),
-    }
+    graph_of(csr)
 }
 
 fn prof(g: &Graph, references: usize) -> Profile {

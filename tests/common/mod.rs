@@ -77,3 +77,39 @@ pub fn zstd_frames(bytes: &[u8], frame: usize) -> Vec<u8> {
 pub fn load_fixture(name: &str) -> Graph {
     ingest::load(&data(name), &LoadOptions::default(), &Quiet).expect("fixture loads")
 }
+
+/// A graph over dense ids 0..n, as the generators build them.
+pub fn graph_of(csr: plumb::csr::Csr) -> Graph {
+    let n = csr.node_count();
+    let m = csr.edge_count();
+    Graph {
+        csr,
+        ids: plumb::graph::NodeIds::Range { first: 0, len: n },
+        intake: plumb::intake::Intake::generated("test", n as u64, m, 0),
+    }
+}
+
+/// The charts of the profile page, by element id.
+pub const CHARTS: [&str; 5] = [
+    "degree-ccdf",
+    "clustering-by-degree",
+    "distance-distribution",
+    "small-world-plane",
+    "small-world-coefficients",
+];
+
+/// Every chart present in `page` (HTML source or a browser's DOM), titled, with data points.
+pub fn assert_charts_have_points(page: &str) {
+    for id in CHARTS {
+        let start = page
+            .find(&format!("id=\"{id}\""))
+            .unwrap_or_else(|| panic!("chart {id} missing"));
+        let end = start + page[start..].find("</svg>").unwrap();
+        let chart = &page[start..end];
+        assert!(
+            chart.contains("class=\"pt\""),
+            "chart {id} is an empty frame"
+        );
+        assert!(chart.contains("<title"), "chart {id} has no title");
+    }
+}
