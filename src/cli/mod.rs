@@ -90,7 +90,7 @@ enum Command {
         #[command(flatten)]
         plan: PlanArgs,
     },
-    /// Write a history's trend page: each figure over time with its interval band, alerts
+    /// Write a history's trend page: each figure over time with interval bars, alerts
     /// marked.
     Trend {
         history: PathBuf,
