@@ -390,14 +390,20 @@ pub fn profile(g: &Graph, opts: &ProfileOptions, progress: &dyn Progress) -> (Pr
             });
             Distances::Exact(Box::new(stats))
         } else {
-            let (est, decision) =
-                estimate_distances(&sub, opts, levels, progress, &mut clock, ap_secs);
+            let (est, decision) = estimate_distances(
+                &Giant {
+                    csr: &sub,
+                    node_set: &node_set,
+                    unreachable,
+                    levels,
+                },
+                opts,
+                progress,
+                &mut clock,
+                ap_secs,
+            );
             plan.push(decision);
-            Distances::Estimated(Box::new(EstimatedDistances {
-                node_set: node_set.clone(),
-                unreachable_pairs_in_graph: unreachable,
-                ..est
-            }))
+            Distances::Estimated(Box::new(est))
         };
         let figures = match (&dist, d) {
             (Distances::Exact(s), _) => DiameterFigures {
@@ -477,14 +483,29 @@ pub fn profile(g: &Graph, opts: &ProfileOptions, progress: &dyn Progress) -> (Pr
 
 /// Distances of the connected `sub` by the sampled-source or HyperBall estimator, whichever the
 /// options ask for or is predicted cheaper for the requested precision.
-fn estimate_distances(
-    sub: &Csr,
-    opts: &ProfileOptions,
+/// The connected node set distances are measured on.
+struct Giant<'a> {
+    csr: &'a Csr,
+    node_set: &'a str,
+    /// Ordered pairs of the whole graph in different components.
+    unreachable: u64,
+    /// BFS levels to expect (the double-sweep bound).
     levels: u64,
+}
+
+fn estimate_distances(
+    giant: &Giant,
+    opts: &ProfileOptions,
     progress: &dyn Progress,
     clock: &mut Clock,
     ap_secs: f64,
 ) -> (EstimatedDistances, Decision) {
+    let Giant {
+        csr: sub,
+        node_set,
+        unreachable,
+        levels,
+    } = *giant;
     let (sn, sm) = (sub.node_count() as u64, sub.edge_count());
     let threads = opts.threads;
     let registers = 1u64 << opts.ball.log2_registers;
@@ -514,8 +535,8 @@ fn estimate_distances(
         ap_secs,
         opts.exact_seconds,
     );
-    let budget_seconds = (opts.distances == Choice::Auto).then_some(opts.exact_seconds);
-    if use_ball {
+    // Each estimator gives its figures and how it describes itself; the result is built once.
+    let (est, method, reason) = if use_ball {
         clock.start("HyperBall");
         let ball = BallOptions {
             level: opts.level,
@@ -532,32 +553,25 @@ fn estimate_distances(
                 secs(*src)
             );
         }
-        (
-            EstimatedDistances {
-                node_set: String::new(),
-                nodes: sn,
-                mean: e.mean,
-                effective_diameter: e.effective_diameter,
-                distribution: e.distribution,
-                unreachable_pairs_in_graph: 0,
-                sources: None,
-                registers: Some(e.registers),
-                counter_rse: Some(e.counter_rse),
-            },
-            Decision {
-                group: "distances".into(),
-                method: format!(
-                    "HyperBall, {} registers per node × {} hash seeds (each counter ±{:.1}% \
-                     relative standard error)",
-                    e.registers,
-                    opts.ball.repeats,
-                    100.0 * e.counter_rse
-                ),
-                exact_seconds: ap_secs,
-                budget_seconds,
-                reason,
-            },
-        )
+        let method = format!(
+            "HyperBall, {} registers per node × {} hash seeds (each counter ±{:.1}% relative \
+             standard error)",
+            e.registers,
+            opts.ball.repeats,
+            100.0 * e.counter_rse
+        );
+        let est = EstimatedDistances {
+            node_set: node_set.to_string(),
+            nodes: sn,
+            mean: e.mean,
+            effective_diameter: e.effective_diameter,
+            distribution: e.distribution,
+            unreachable_pairs_in_graph: unreachable,
+            sources: None,
+            registers: Some(e.registers),
+            counter_rse: Some(e.counter_rse),
+        };
+        (est, method, reason)
     } else {
         let (e, reason) = match pilot {
             Some((p, src_secs)) => {
@@ -582,32 +596,33 @@ fn estimate_distances(
             }
         };
         clock.done("sampled distances");
-        (
-            EstimatedDistances {
-                node_set: String::new(),
-                nodes: sn,
-                mean: e.mean,
-                effective_diameter: e.effective_diameter,
-                distribution: e.distribution,
-                unreachable_pairs_in_graph: 0,
-                sources: Some(e.sources),
-                registers: None,
-                counter_rse: None,
-            },
-            Decision {
-                group: "distances".into(),
-                method: format!(
-                    "BFS from {} sampled sources, to ±{}% of the mean at {}%",
-                    e.sources,
-                    100.0 * opts.distance_tolerance,
-                    100.0 * opts.level
-                ),
-                exact_seconds: ap_secs,
-                budget_seconds,
-                reason,
-            },
-        )
-    }
+        let method = format!(
+            "BFS from {} sampled sources, to ±{}% of the mean at {}%",
+            e.sources,
+            100.0 * opts.distance_tolerance,
+            100.0 * opts.level
+        );
+        let est = EstimatedDistances {
+            node_set: node_set.to_string(),
+            nodes: sn,
+            mean: e.mean,
+            effective_diameter: e.effective_diameter,
+            distribution: e.distribution,
+            unreachable_pairs_in_graph: unreachable,
+            sources: Some(e.sources),
+            registers: None,
+            counter_rse: None,
+        };
+        (est, method, reason)
+    };
+    let decision = Decision {
+        group: "distances".into(),
+        method,
+        exact_seconds: ap_secs,
+        budget_seconds: (opts.distances == Choice::Auto).then_some(opts.exact_seconds),
+        reason,
+    };
+    (est, decision)
 }
 
 /// The observed figures of the giant component `sub` (nodes `giant` of the whole graph).

@@ -1,6 +1,8 @@
 //! Statistical honesty of the estimators: nominal 95% intervals must cover the exact value in
 //! about 95% of seeded runs (92% to 98.5% over 200 seeds), and a requested precision is met.
 
+mod common;
+
 use plumb::csr::Csr;
 use plumb::estimate::wedges;
 use plumb::generate;
@@ -64,16 +66,7 @@ fn requested_precision_is_met() {
 fn karate_club_estimates_converge_to_the_published_values() {
     // Zachary (1977), figures as in the exact tests (NetworkX 3.6.1 on the same edge list):
     // 45 triangles, transitivity 0.255682, average clustering 0.570638, mean distance 2.408200.
-    let text = std::fs::read(
-        std::path::Path::new(env!("CARGO_MANIFEST_DIR")).join("tests/data/karate.mtx"),
-    )
-    .unwrap();
-    let g = plumb::ingest::load_input(
-        plumb::input::source::InputBytes::from_vec("karate", text),
-        &plumb::ingest::LoadOptions::default(),
-        &plumb::progress::Quiet,
-    )
-    .unwrap();
+    let g = common::load_fixture("karate.mtx");
     let e = wedges::estimate(&g.csr, 2_000_000, 0.95, 5);
     assert!((e.transitivity.value - 0.255682).abs() < 0.002);
     assert!((e.triangles.value - 45.0).abs() < 0.5);

@@ -80,12 +80,7 @@ fn demo_report_validates_against_the_committed_schema() {
     );
     assert_eq!(v["input"]["bytes"], bytes.len());
     // An estimated report validates too (intervals, sampled references).
-    let g = load_bytes(
-        "karate.mtx",
-        &std::fs::read(data("karate.mtx")).unwrap(),
-        &Default::default(),
-    )
-    .unwrap();
+    let g = load_fixture("karate.mtx");
     let opts = ProfileOptions {
         clustering: plumb::plan::Choice::Estimate,
         distances: plumb::plan::Choice::Estimate,
@@ -104,12 +99,7 @@ fn karate_golden_report() {
     // Zachary (1977), the exact figures pinned (checked against NetworkX 3.6.1 in
     // exact_structure.rs): 45 triangles, transitivity 0.255682, average clustering 0.570638,
     // mean distance 2.408200, diameter 5.
-    let g = load_bytes(
-        "karate.mtx",
-        &std::fs::read(data("karate.mtx")).unwrap(),
-        &Default::default(),
-    )
-    .unwrap();
+    let g = load_fixture("karate.mtx");
     let opts = ProfileOptions {
         reference_graphs: Some(0),
         threads: 2,
@@ -140,12 +130,7 @@ fn karate_golden_report() {
 
 #[test]
 fn html_page_is_self_contained_and_every_chart_has_data() {
-    let g = load_bytes(
-        "karate.mtx",
-        &std::fs::read(data("karate.mtx")).unwrap(),
-        &Default::default(),
-    )
-    .unwrap();
+    let g = load_fixture("karate.mtx");
     let opts = ProfileOptions {
         reference_graphs: Some(2),
         ..ProfileOptions::default()

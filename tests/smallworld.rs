@@ -192,12 +192,7 @@ fn karate_club_coefficients_by_hand() {
     // C_l = 3·2/(4·3) = 1/2 (Watts & Strogatz 1998); L_l of the ring lattice n = 34, k = 4:
     // K = 2, S(h) = K q(q+1)/2 + r(q+1); n even: L_l = (2 S(16) + ceil(17/2)) / 33
     // = (2·(2·8·9/2) + 9)/33 = 153/33.
-    let g = load_bytes(
-        "karate.mtx",
-        &std::fs::read(data("karate.mtx")).unwrap(),
-        &Default::default(),
-    )
-    .unwrap();
+    let g = load_fixture("karate.mtx");
     let p = prof(&g, 0);
     let k: f64 = 156.0 / 34.0;
     let gamma = 0.577_215_664_901_532_9;
