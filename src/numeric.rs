@@ -13,3 +13,36 @@ pub fn det_sum(n: usize, f: impl Fn(usize) -> f64 + Sync) -> f64 {
         .collect();
     blocks.iter().sum()
 }
+
+/// Mean and sample variance (n − 1 denominator; 0 for fewer than two values), deterministic.
+pub fn mean_variance(x: &[f64]) -> (f64, f64) {
+    let n = x.len();
+    if n == 0 {
+        return (0.0, 0.0);
+    }
+    let mean = det_sum(n, |i| x[i]) / n as f64;
+    let var = if n > 1 {
+        det_sum(n, |i| (x[i] - mean).powi(2)) / (n - 1) as f64
+    } else {
+        0.0
+    };
+    (mean, var)
+}
+
+/// The `q` quantile of `sorted` (ascending, non-empty) by the lower order statistic.
+pub fn lower_quantile(sorted: &[f64], q: f64) -> f64 {
+    sorted[((q * sorted.len() as f64) as usize).min(sorted.len() - 1)]
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn moments_and_quantiles() {
+        assert_eq!(mean_variance(&[1.0, 2.0, 3.0, 4.0]), (2.5, 5.0 / 3.0));
+        assert_eq!(mean_variance(&[7.0]), (7.0, 0.0));
+        assert_eq!(lower_quantile(&[1.0, 2.0, 3.0, 4.0], 0.5), 3.0);
+        assert_eq!(lower_quantile(&[1.0, 2.0], 1.0), 2.0);
+    }
+}

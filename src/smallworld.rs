@@ -19,7 +19,7 @@ use rand_chacha::ChaCha8Rng;
 use serde::{Deserialize, Serialize};
 
 use crate::figure::{Figure, Interval};
-use crate::numeric::det_sum;
+use crate::numeric::{lower_quantile, mean_variance};
 
 /// Euler–Mascheroni constant.
 const EULER_GAMMA: f64 = 0.577_215_664_901_532_9;
@@ -189,12 +189,7 @@ pub fn empirical_reference(
             return None;
         }
         let v: Vec<f64> = samples.iter().map(pick).collect();
-        let mean = det_sum(r, |i| v[i]) / r as f64;
-        let var = if r > 1 {
-            det_sum(r, |i| (v[i] - mean).powi(2)) / (r - 1) as f64
-        } else {
-            0.0
-        };
+        let (mean, var) = mean_variance(&v);
         let se = (var * (1.0 + 1.0 / r as f64)).sqrt();
         let half = if r > 1 {
             crate::estimate::interval::t_for(level, r as u64 - 1) * se
@@ -291,11 +286,9 @@ fn propagate(
     if draws.len() < 2 {
         return Figure::exact(value, name);
     }
-    let mean = det_sum(draws.len(), |i| draws[i]) / draws.len() as f64;
-    let se =
-        (det_sum(draws.len(), |i| (draws[i] - mean).powi(2)) / (draws.len() - 1) as f64).sqrt();
+    let se = mean_variance(&draws).1.sqrt();
     draws.sort_by(f64::total_cmp);
-    let q = |p: f64| draws[((p * draws.len() as f64) as usize).min(draws.len() - 1)];
+    let q = |p: f64| lower_quantile(&draws, p);
     let tail = (1.0 - level) / 2.0;
     Figure::estimate(
         value,

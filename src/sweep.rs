@@ -7,7 +7,7 @@ use serde::{Deserialize, Serialize};
 use crate::estimate::interval::t_for;
 use crate::figure::{Figure, Interval};
 use crate::generate::Model;
-use crate::numeric::det_sum;
+use crate::numeric::mean_variance;
 use crate::profile::{ProfileOptions, measure_reference};
 use crate::smallworld::{lattice_clustering, lattice_mean_distance};
 
@@ -37,11 +37,10 @@ pub struct Sweep {
 /// one graph gives its value with no interval of its own, marked as a single graph.
 fn mean_of(values: &[f64], level: f64, what: &str) -> Figure {
     let r = values.len();
-    let mean = det_sum(r, |i| values[i]) / r as f64;
+    let (mean, var) = mean_variance(values);
     if r < 2 {
         return Figure::exact_over(mean, &format!("{what}, one graph"), 1);
     }
-    let var = det_sum(r, |i| (values[i] - mean).powi(2)) / (r - 1) as f64;
     let se = (var / r as f64).sqrt();
     let half = t_for(level, r as u64 - 1) * se;
     Figure::estimate(

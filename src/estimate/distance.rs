@@ -16,7 +16,7 @@ use super::sample::mean_interval;
 use crate::csr::Csr;
 use crate::distances::{effective_diameter, sources_batch_each};
 use crate::figure::{Figure, Interval};
-use crate::numeric::det_sum;
+use crate::numeric::{lower_quantile, mean_variance};
 
 /// Bootstrap resamples for the effective diameter.
 const RESAMPLES: usize = 1000;
@@ -249,11 +249,10 @@ fn bootstrap_effective(
             effective_of(pick.iter().map(|&i| &per[i]), longest)
         })
         .collect();
-    let centre = det_sum(reps.len(), |i| reps[i]) / reps.len() as f64;
-    let se = (det_sum(reps.len(), |i| (reps[i] - centre).powi(2)) / (reps.len() - 1) as f64).sqrt();
+    let se = mean_variance(&reps).1.sqrt();
     reps.sort_by(f64::total_cmp);
     let tail = (1.0 - level) / 2.0;
-    let at = |q: f64| reps[((q * RESAMPLES as f64).floor() as usize).min(RESAMPLES - 1)];
+    let at = |q: f64| lower_quantile(&reps, q);
     Figure::estimate(
         value,
         &format!(

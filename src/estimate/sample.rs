@@ -7,7 +7,7 @@ use rustc_hash::FxHashSet;
 
 use super::interval::z_for;
 use crate::figure::Interval;
-use crate::numeric::det_sum;
+use crate::numeric::mean_variance;
 
 /// `k` distinct items of `population` (all of it when k >= its length), in a seeded random
 /// order. Floyd's algorithm (Bentley & Floyd, "A sample of brilliance", CACM 30(9), 1987).
@@ -50,12 +50,7 @@ pub fn mean_interval(
             },
         );
     }
-    let mean = det_sum(k, |i| values[i]) / k as f64;
-    let var = if k > 1 {
-        det_sum(k, |i| (values[i] - mean).powi(2)) / (k - 1) as f64
-    } else {
-        0.0
-    };
+    let (mean, var) = mean_variance(values);
     let fpc = (1.0 - k as f64 / population.max(1) as f64).max(0.0);
     let se = (var / k as f64 * fpc).sqrt();
     let z = z_for(level);
