@@ -56,6 +56,9 @@ pub struct History {
     pub index: Index,
     /// Things found wrong on opening (unreadable snapshots, a rebuilt index).
     pub problems: Vec<Problem>,
+    /// Each entry's report as read on opening (`None` when unreadable): read once, used by
+    /// every query.
+    loaded: Vec<Option<Report>>,
 }
 
 /// Held while writing; removed on drop.
@@ -171,21 +174,27 @@ impl History {
             }
             Err(e) => return Err(io(&index_path, "read")(e)),
         };
-        let mut h = History {
+        // Snapshots the index lists but that cannot be read are reported, not fatal.
+        let loaded = index
+            .entries
+            .iter()
+            .map(|e| match read_report(&dir.join(&e.file)) {
+                Ok(r) => Some(r),
+                Err(what) => {
+                    problems.push(Problem {
+                        file: e.file.clone(),
+                        what,
+                    });
+                    None
+                }
+            })
+            .collect();
+        Ok(History {
             dir: dir.to_path_buf(),
             index,
             problems,
-        };
-        // Snapshots the index lists but that cannot be read are reported, not fatal.
-        for e in &h.index.entries {
-            if let Err(what) = read_report(&h.dir.join(&e.file)) {
-                h.problems.push(Problem {
-                    file: e.file.clone(),
-                    what,
-                });
-            }
-        }
-        Ok(h)
+            loaded,
+        })
     }
 
     /// An index from the snapshot files themselves, in file-name (sequence) order.
@@ -240,22 +249,23 @@ impl History {
     }
 
     /// The latest readable snapshot, and the pinned baseline (first entry unless one is pinned).
-    pub fn latest(&self) -> Option<(&Entry, Report)> {
+    pub fn latest(&self) -> Option<(&Entry, &Report)> {
         self.index
             .entries
             .iter()
+            .zip(&self.loaded)
             .rev()
-            .find_map(|e| read_report(&self.dir.join(&e.file)).ok().map(|r| (e, r)))
+            .find_map(|(e, r)| r.as_ref().map(|r| (e, r)))
     }
 
-    pub fn baseline(&self) -> Option<(&Entry, Report)> {
-        let e = self
+    pub fn baseline(&self) -> Option<(&Entry, &Report)> {
+        let i = self
             .index
             .entries
             .iter()
-            .find(|e| e.baseline)
-            .or(self.index.entries.first())?;
-        read_report(&self.dir.join(&e.file)).ok().map(|r| (e, r))
+            .position(|e| e.baseline)
+            .or((!self.index.entries.is_empty()).then_some(0))?;
+        self.loaded[i].as_ref().map(|r| (&self.index.entries[i], r))
     }
 
     /// Add `report` under `label` (the caller holds the lock); `pin` makes it the baseline.
@@ -293,6 +303,7 @@ impl History {
             baseline: pin || self.index.entries.is_empty(),
         };
         self.index.entries.push(entry.clone());
+        self.loaded.push(Some(report.clone()));
         self.write_index()?;
         Ok(entry)
     }
@@ -304,15 +315,12 @@ impl History {
     }
 
     /// Every readable snapshot in order, with its entry.
-    pub fn reports(&self) -> Vec<(Entry, Report)> {
+    pub fn reports(&self) -> Vec<(&Entry, &Report)> {
         self.index
             .entries
             .iter()
-            .filter_map(|e| {
-                read_report(&self.dir.join(&e.file))
-                    .ok()
-                    .map(|r| (e.clone(), r))
-            })
+            .zip(&self.loaded)
+            .filter_map(|(e, r)| r.as_ref().map(|r| (e, r)))
             .collect()
     }
 }

@@ -87,16 +87,22 @@ pub fn checksum(path: &Path) -> Result<(u64, String)> {
 }
 
 impl Report {
-    /// Wrap `profile` with the facts of its input (`path`, `None` for standard input).
+    /// Wrap `profile` with the facts of its input (`path`, `None` for standard input); the
+    /// input's size and checksum are read here.
     pub fn new(profile: Profile, path: Option<&Path>, opts: &ProfileOptions) -> Result<Report> {
-        let (bytes, xxh3) = match path {
-            Some(p) => {
-                let (b, h) = checksum(p)?;
-                (Some(b), Some(h))
-            }
-            None => (None, None),
-        };
-        Ok(Report {
+        let sum = path.map(checksum).transpose()?;
+        Ok(Report::with_checksum(profile, path, sum, opts))
+    }
+
+    /// As [`Report::new`], with the input's size and checksum already known.
+    pub fn with_checksum(
+        profile: Profile,
+        path: Option<&Path>,
+        sum: Option<(u64, String)>,
+        opts: &ProfileOptions,
+    ) -> Report {
+        let (bytes, xxh3) = sum.map_or((None, None), |(b, h)| (Some(b), Some(h)));
+        Report {
             schema: SCHEMA_NAME.into(),
             schema_version: SCHEMA_VERSION,
             plumb_version: env!("CARGO_PKG_VERSION").into(),
@@ -118,7 +124,7 @@ impl Report {
             },
             profile,
             ids: None,
-        })
+        }
     }
 
     /// Attach the id sketches of `g` (the graph this report profiles).

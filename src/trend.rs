@@ -19,8 +19,8 @@ pub fn page(h: &History, level: f64, thresholds: &[(String, Threshold)]) -> Stri
     let mut alerts: Vec<Vec<String>> = vec![Vec::new(); snaps.len()];
     for i in 1..snaps.len() {
         let d = compare(
-            &snaps[i - 1].1,
-            &snaps[i].1,
+            snaps[i - 1].1,
+            snaps[i].1,
             (&labels[i - 1], &labels[i]),
             level,
             thresholds,

@@ -584,18 +584,17 @@ fn track(
         eprintln!("plumb: {}: {}: {}", dir.display(), p.file, p.what);
     }
     let source = (input.input.as_os_str() != "-").then_some(input.input.as_path());
-    if let Some(path) = source {
-        let (_, sum) = plumb::report::checksum(path)?;
-        if let Some(e) = h.find_input(&sum)
+    let sum = source.map(plumb::report::checksum).transpose()?;
+    if let Some((_, sum)) = &sum {
+        let path = input.input.display();
+        if let Some(e) = h.find_input(sum)
             && !again
         {
             return Err(Error::Parameters {
                 problem: format!(
                     "{} is already in the history as snapshot {} ({}), same checksum {sum}; \
                      add it again with --again",
-                    path.display(),
-                    e.seq,
-                    e.label
+                    path, e.seq, e.label
                 ),
             });
         }
@@ -603,9 +602,9 @@ fn track(
     let opts = plan.options();
     let g = ingest::load(&input.input, &input.options(), bars)?;
     let (p, _) = plumb::profile::profile(&g, &opts, bars);
-    let report = plumb::report::Report::new(p, source, &opts)?.with_sketch(&g);
-    let previous = h.latest().map(|(e, r)| (e.clone(), r));
-    let baseline = h.baseline().map(|(e, r)| (e.clone(), r));
+    let report = plumb::report::Report::with_checksum(p, source, sum, &opts).with_sketch(&g);
+    let previous = h.latest().map(|(e, r)| (e.clone(), r.clone()));
+    let baseline = h.baseline().map(|(e, r)| (e.clone(), r.clone()));
     let label = label.unwrap_or_else(|| {
         input
             .input

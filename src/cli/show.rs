@@ -577,8 +577,8 @@ pub fn sweep_text(s: &plumb::sweep::Sweep) -> String {
         .unwrap_or(0.95);
     let _ = writeln!(
         out,
-        "plumb sweep · Watts–Strogatz n={} k={} · {graphs} seeded graphs per p · ± is the half-width \
-         of the {:.0}% interval",
+        "plumb sweep · Watts–Strogatz n={} k={} · {graphs} seeded graphs per p · ± half-width of \
+         the {:.0}% interval",
         s.nodes,
         s.degree,
         100.0 * level
@@ -590,7 +590,7 @@ pub fn sweep_text(s: &plumb::sweep::Sweep) -> String {
     );
     let _ = writeln!(
         out,
-        "  {:<10} {:<20} {:<20} {:<10} L(p)",
+        "  {:<8} {:<18} {:<18} {:<18} L(p)",
         "p", "C(p)/C(0)", "L(p)/L(0)", "C(p)"
     );
     let pm = |f: &Figure| match f.interval {
@@ -600,12 +600,12 @@ pub fn sweep_text(s: &plumb::sweep::Sweep) -> String {
     for r in &s.rows {
         let _ = writeln!(
             out,
-            "  {:<10} {:<20} {:<20} {:<10.4} {:.3}",
+            "  {:<8} {:<18} {:<18} {:<18} {}",
             r.p,
             pm(&r.clustering_ratio),
             pm(&r.distance_ratio),
-            r.clustering.value,
-            r.mean_distance.value
+            pm(&r.clustering),
+            pm(&r.mean_distance)
         );
     }
     out
