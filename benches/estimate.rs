@@ -1,7 +1,7 @@
 //! Estimators on a generated graph of 50 million edges (Watts–Strogatz, n = 5,000,000, k = 20,
 //! p = 0.1): transitivity by wedge sampling to ±0.002 at 95%, the mean distance to ±1% at 95%
 //! from sampled sources, one HyperBall round, and the per-thread rates the planner's cost model
-//! uses (`plan::REFERENCE_RATES`).
+//! uses (`cost::REFERENCE_RATES`).
 //!
 //! Run: `cargo bench --bench estimate` (add `-- --quick` for a 10x smaller graph). Answers are
 //! checked: the wedge estimate against exact triangle counting, the interval widths against the
@@ -10,7 +10,10 @@
 use std::time::Instant;
 
 use plumb::estimate::{distance, hyperball, wedges};
-use plumb::{clustering, generate, plan, triangles};
+use plumb::exact::clustering;
+use plumb::exact::cost;
+use plumb::exact::triangles;
+use plumb::models::generate;
 
 fn main() {
     let quick = std::env::args().any(|a| a == "--quick");
@@ -96,14 +99,14 @@ fn main() {
     );
 
     // Per-thread rates for the planner.
-    let tri_rate = plan::triangle_work(&g) / t_exact / threads as f64;
+    let tri_rate = cost::triangle_work(&g) / t_exact / threads as f64;
     let levels = d.farthest as u64;
-    let bfs_rate = plan::bfs_work(d.sources, n as u64, m, levels) / t_dist / threads as f64;
+    let bfs_rate = cost::bfs_work(d.sources, n as u64, m, levels) / t_dist / threads as f64;
     let ball_rate = (arcs + n as f64) * 64.0 / first / threads as f64;
     let wedge_rate = samples as f64 / t_wedge / threads as f64;
     println!(
         "planner rates per thread: triangle {tri_rate:.2e} · bfs_words {bfs_rate:.2e} · \
          ball_bytes {ball_rate:.2e} · wedges {wedge_rate:.2e} (REFERENCE_RATES: {:?})",
-        plan::REFERENCE_RATES
+        cost::REFERENCE_RATES
     );
 }

@@ -7,10 +7,13 @@
 
 use std::time::Instant;
 
-use plumb::bfs::Bfs;
-use plumb::components::{components, induced};
-use plumb::csr::Csr;
-use plumb::{diameter, distances, generate, triangles};
+use plumb::exact::bfs::Bfs;
+use plumb::exact::components::{components, induced};
+use plumb::exact::diameter;
+use plumb::exact::distances;
+use plumb::exact::triangles;
+use plumb::models::generate;
+use plumb::store::csr::Csr;
 
 fn best<T>(reps: usize, mut f: impl FnMut() -> T) -> (T, f64) {
     let mut secs = f64::MAX;
@@ -30,7 +33,7 @@ fn bench(name: &str, g: &Csr) {
     let per = triangles::count(g);
     assert_eq!(per.total, tri, "{name}: totals disagree");
     assert_eq!(per.per_node.iter().sum::<u64>(), 3 * tri);
-    let wedges: u128 = plumb::clustering::wedge_total(g);
+    let wedges: u128 = plumb::exact::clustering::wedge_total(g);
     let (comps, t_cc) = best(3, || components(g));
     let giant = comps.giant_nodes();
     // Single BFS from a few sources in the giant component; TEPS counts the component's edges.
@@ -50,7 +53,7 @@ fn bench(name: &str, g: &Csr) {
     let sub = induced(g, &giant);
     // A 20 s search budget (the profile's own default for the diameter is 1 s).
     let budget = plumb::profile::DEFAULT_EXACT_SECONDS
-        * plumb::plan::REFERENCE_RATES.bfs_words
+        * plumb::exact::cost::REFERENCE_RATES.bfs_words
         * rayon::current_num_threads() as f64;
     let (d, t_diam) = best(1, || diameter::ifub(&sub, diameter::sweep(&sub), budget));
     // All-pairs rate on a slice of sources: time one parallel round of 4 batches per thread.
@@ -104,14 +107,14 @@ fn end_to_end(g: &Csr) {
     out.flush().unwrap();
     drop(out);
     let (t, secs) = best(3, || {
-        let h = plumb::ingest::load(
+        let h = plumb::store::load::load(
             &path,
-            &plumb::ingest::LoadOptions::default(),
+            &plumb::store::load::LoadOptions::default(),
             &plumb::progress::Quiet,
         )
         .unwrap();
         let tri = triangles::total(&h.csr);
-        let wedges: u128 = plumb::clustering::wedge_total(&h.csr);
+        let wedges: u128 = plumb::exact::clustering::wedge_total(&h.csr);
         3.0 * tri as f64 / wedges as f64
     });
     println!(

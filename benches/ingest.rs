@@ -9,10 +9,10 @@ use std::sync::atomic::{AtomicUsize, Ordering::Relaxed};
 use std::time::Instant;
 
 use plumb::Graph;
-use plumb::csr::Csr;
-use plumb::graph::NodeIds;
-use plumb::ingest::{self, LoadOptions};
 use plumb::progress::Quiet;
+use plumb::store::csr::Csr;
+use plumb::store::graph::NodeIds;
+use plumb::store::load::{self, LoadOptions};
 use rand::{RngExt, SeedableRng};
 
 /// Counts live heap bytes and their peak, to measure build memory without page-cache noise.
@@ -99,7 +99,7 @@ fn time_load(path: &Path, reps: usize) -> (Graph, f64, usize) {
         let base = LIVE.load(Relaxed);
         PEAK.store(base, Relaxed);
         let t = Instant::now();
-        let g = ingest::load(path, &LoadOptions::default(), &Quiet).expect("bench input loads");
+        let g = load::load(path, &LoadOptions::default(), &Quiet).expect("bench input loads");
         best = best.min(t.elapsed().as_secs_f64());
         peak = PEAK.load(Relaxed) - base;
         last = Some(g);
@@ -194,13 +194,13 @@ fn main() {
     let g = lattice_graph(sn, sk);
     let store = dir.path().join("big.plumb");
     let t = Instant::now();
-    let bytes = plumb::store::write(&g, &store).unwrap();
+    let bytes = plumb::store::file::write(&g, &store).unwrap();
     let write_s = t.elapsed().as_secs_f64();
     drop(g);
     let mut best = f64::MAX;
     for _ in 0..3 {
         let t = Instant::now();
-        let g = plumb::store::open(&store).unwrap();
+        let g = plumb::store::file::open(&store).unwrap();
         best = best.min(t.elapsed().as_secs_f64());
         assert_eq!(g.edge_count(), sn * sk);
     }
@@ -233,6 +233,6 @@ fn lattice_graph(n: u64, half_k: u64) -> Graph {
             first: 0,
             len: n as usize,
         },
-        intake: plumb::intake::Intake::generated("generated ring lattice", n, n * half_k, 0),
+        intake: plumb::store::intake::Intake::generated("generated ring lattice", n, n * half_k, 0),
     }
 }

@@ -8,11 +8,11 @@
 
 use std::time::Instant;
 
-use plumb::generate::{self, Model};
-use plumb::graph::NodeIds;
-use plumb::intake::Intake;
+use plumb::models::generate::{self, Model};
 use plumb::outfile::EdgeWriter;
 use plumb::profile::{ProfileOptions, profile};
+use plumb::store::graph::NodeIds;
+use plumb::store::intake::Intake;
 
 fn main() {
     let quick = std::env::args().any(|a| a == "--quick");

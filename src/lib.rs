@@ -1,45 +1,36 @@
 //! plumb: structure profiles of very large undirected networks, straight from edge-list dumps.
 //!
-//! The library holds every algorithm; the `plumb` binary only parses arguments and presents.
-//! Start with [`ingest::load`], which reads an edge file (plain, zstd or gzip; edge list or
-//! Matrix Market) or a store file into a [`Graph`].
+//! The library owns every workflow; the `plumb` binary only parses arguments, calls one of them,
+//! prints what it returns and maps errors to exit codes. The data flows through one folder per
+//! stage, each using only those listed before it:
+//!
+//! | stage | folder | owns |
+//! |---|---|---|
+//! | read | [`read`] | magic bytes, sources (maps, decoders), the line grammars, chunk scanning |
+//! | build and store | [`store`] | id tables, the CSR fill, the [`Graph`], the store file, resource limits |
+//! | exact | [`exact`] | degrees, components, triangles, clustering, BFS, distances, diameter, costs |
+//! | estimate | [`estimate`] | wedge and node sampling, sampled-source BFS, HyperBall, id sketches, intervals |
+//! | models | [`models`] | generators, degree-preserving swaps, small-world references, the sweep |
+//! | profile | [`profile`] | the planner, one unit per figure group, the report document |
+//! | output | [`output`] | text, HTML and SVG, the per-node table, the number formatter |
+//! | monitor | [`monitor`] | history directories, comparisons, `track`, trend pages |
+//!
+//! Start with [`store::load::load`], which reads an edge file (plain, zstd or gzip; edge list or
+//! Matrix Market) or a store file into a [`Graph`], then [`profile::profile`].
 
-pub mod bfs;
-pub mod clustering;
-pub mod components;
-pub mod csr;
-pub mod degrees;
-pub mod demo;
-pub mod diameter;
-pub mod distances;
-pub mod drift;
 pub mod error;
 pub mod estimate;
+pub mod exact;
 pub mod figure;
-pub mod generate;
-pub mod graph;
-pub mod history;
-pub mod html;
-pub mod ingest;
-pub mod input;
-pub mod intake;
-pub mod limits;
+pub mod models;
+pub mod monitor;
 pub mod numeric;
 pub mod outfile;
-pub mod pernode;
-pub mod plan;
+pub mod output;
 pub mod profile;
 pub mod progress;
-pub mod randomize;
-pub mod report;
-pub mod sketch;
-pub mod slab;
-pub mod smallworld;
+pub mod read;
 pub mod store;
-pub mod svg;
-pub mod sweep;
-pub mod trend;
-pub mod triangles;
 
 pub use error::{Error, Result};
-pub use graph::Graph;
+pub use store::graph::Graph;

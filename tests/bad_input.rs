@@ -5,7 +5,7 @@ mod common;
 
 use common::*;
 use plumb::Error;
-use plumb::ingest::LoadOptions;
+use plumb::store::load::LoadOptions;
 
 fn err(bytes: &[u8]) -> Error {
     load_bytes("bad.txt", bytes, &LoadOptions::default()).expect_err("must be rejected")
@@ -154,11 +154,12 @@ fn empty_inputs() {
 fn unreadable_files() {
     let opts = LoadOptions::default();
     let q = &plumb::progress::Quiet;
-    let e = plumb::ingest::load(std::path::Path::new("/no/such/file.tsv"), &opts, q).unwrap_err();
+    let e =
+        plumb::store::load::load(std::path::Path::new("/no/such/file.tsv"), &opts, q).unwrap_err();
     assert!(matches!(e, Error::Io { .. }));
     assert!(e.to_string().contains("/no/such/file.tsv"));
     let dir = tempfile::tempdir().unwrap();
-    let e = plumb::ingest::load(dir.path(), &opts, q).unwrap_err();
+    let e = plumb::store::load::load(dir.path(), &opts, q).unwrap_err();
     assert!(e.to_string().contains("directory"), "{e}");
 }
 
@@ -209,12 +210,12 @@ fn store_files_truncated_corrupt_or_newer() {
     let g = load_text("1 2\n2 3\n3 1\n");
     let dir = tempfile::tempdir().unwrap();
     let path = dir.path().join("g.plumb");
-    plumb::store::write(&g, &path).unwrap();
+    plumb::store::file::write(&g, &path).unwrap();
     let good = std::fs::read(&path).unwrap();
     let reopen = |bytes: &[u8]| {
         let p = dir.path().join("x.plumb");
         std::fs::write(&p, bytes).unwrap();
-        plumb::store::open(&p).unwrap_err().to_string()
+        plumb::store::file::open(&p).unwrap_err().to_string()
     };
     assert!(reopen(&good[..good.len() - 10]).contains("truncated"));
     assert!(reopen(&good[..50]).contains("too short"));

@@ -3,13 +3,13 @@
 
 mod common;
 
-use plumb::csr::Csr;
 use plumb::estimate::wedges;
-use plumb::generate;
+use plumb::models::generate;
+use plumb::store::csr::Csr;
 
 fn exact_transitivity(g: &Csr) -> f64 {
-    let t = plumb::triangles::total(g);
-    let w = plumb::clustering::wedge_total(g);
+    let t = plumb::exact::triangles::total(g);
+    let w = plumb::exact::clustering::wedge_total(g);
     3.0 * t as f64 / w as f64
 }
 
@@ -165,8 +165,8 @@ fn sampled_bfs_distance_intervals_cover_at_the_nominal_rate() {
 #[test]
 fn node_wedge_clustering_intervals_cover_at_the_nominal_rate() {
     for (name, g) in graphs() {
-        let t = plumb::triangles::count(&g);
-        let s = plumb::clustering::stats(&g, &t, &plumb::clustering::local(&g, &t));
+        let t = plumb::exact::triangles::count(&g);
+        let s = plumb::exact::clustering::stats(&g, &t, &plumb::exact::clustering::local(&g, &t));
         let (z, d2) = (s.average_zeros.value, s.average_deg2.value);
         let runs = 1000;
         let (mut cz, mut cd) = (0, 0);
@@ -188,10 +188,10 @@ fn node_wedge_clustering_intervals_cover_at_the_nominal_rate() {
 
 /// Exact mean distance and effective diameter of the giant component, by all-pairs BFS.
 fn exact_distances(g: &Csr) -> (Csr, f64, f64, Vec<f64>) {
-    let c = plumb::components::components(g);
-    let sub = plumb::components::induced(g, &c.giant_nodes());
-    let ap = plumb::distances::all_pairs(&sub);
-    let s = plumb::distances::DistanceStats::from_all_pairs(&ap, "giant", 0);
+    let c = plumb::exact::components::components(g);
+    let sub = plumb::exact::components::induced(g, &c.giant_nodes());
+    let ap = plumb::exact::distances::all_pairs(&sub);
+    let s = plumb::exact::distances::DistanceStats::from_all_pairs(&ap, "giant", 0);
     let pairs = s.pairs as f64;
     let shares = ap.pairs[1..].iter().map(|&c| c as f64 / pairs).collect();
     (sub, s.mean.value, s.effective_diameter.value, shares)
@@ -235,8 +235,10 @@ fn hyperball_intervals_cover_and_land_within_three_standard_errors() {
 fn degree_bin_clustering_intervals_cover_at_the_nominal_rate() {
     // C(k) by degree bin: every bin's interval, over 300 seeds, pooled per graph.
     for (name, g) in graphs() {
-        let t = plumb::triangles::count(&g);
-        let exact = plumb::clustering::stats(&g, &t, &plumb::clustering::local(&g, &t)).by_degree;
+        let t = plumb::exact::triangles::count(&g);
+        let exact =
+            plumb::exact::clustering::stats(&g, &t, &plumb::exact::clustering::local(&g, &t))
+                .by_degree;
         let runs = 300;
         let mut covered = 0;
         for seed in 0..runs {

@@ -1,9 +1,11 @@
 //! Every fast exact algorithm against its naive twin on random graphs.
 
-use plumb::bfs::{Bfs, UNREACHED, naive_distances};
-use plumb::components::{components, induced};
-use plumb::csr::Csr;
-use plumb::{diameter, distances, triangles};
+use plumb::exact::bfs::{Bfs, UNREACHED, naive_distances};
+use plumb::exact::components::{components, induced};
+use plumb::exact::diameter;
+use plumb::exact::distances;
+use plumb::exact::triangles;
+use plumb::store::csr::Csr;
 use proptest::prelude::*;
 
 fn graphs() -> impl Strategy<Value = Csr> {

@@ -5,9 +5,9 @@ mod common;
 
 use common::*;
 use plumb::Graph;
-use plumb::csr::Csr;
-use plumb::generate;
+use plumb::models::generate;
 use plumb::profile::{Distances, Profile, ProfileOptions, profile};
+use plumb::store::csr::Csr;
 
 fn graph(csr: Csr) -> Graph {
     graph_of(csr)
@@ -17,7 +17,7 @@ fn prof(g: &Graph) -> Profile {
     profile(g, &ProfileOptions::default(), &plumb::progress::Quiet).0
 }
 
-fn exact(p: &Profile) -> &plumb::distances::DistanceStats {
+fn exact(p: &Profile) -> &plumb::exact::distances::DistanceStats {
     match &p.distances {
         Distances::Exact(s) => s,
         other => panic!("distances not exact: {other:?}"),
@@ -268,7 +268,7 @@ fn over_budget_distances_are_skipped_and_said() {
     let g = graph(generate::ring_lattice(2000, 10));
     // A budget of about a million BFS words at the reference rate, on one thread.
     let opts = ProfileOptions {
-        exact_seconds: 1e6 / plumb::plan::REFERENCE_RATES.bfs_words,
+        exact_seconds: 1e6 / plumb::exact::cost::REFERENCE_RATES.bfs_words,
         threads: 1,
         ..ProfileOptions::default()
     };
@@ -291,15 +291,15 @@ fn diameter_under_a_small_budget_is_bounded_never_guessed() {
     // A random graph has fat outer BFS levels, where iFUB needs many searches.
     let g = graph(generate::gnm(3000, 9000, 5));
     let truth = {
-        let c = plumb::components::components(&g.csr);
-        let sub = plumb::components::induced(&g.csr, &c.giant_nodes());
-        plumb::diameter::diameter(&sub).lower as f64
+        let c = plumb::exact::components::components(&g.csr);
+        let sub = plumb::exact::components::induced(&g.csr, &c.giant_nodes());
+        plumb::exact::diameter::diameter(&sub).lower as f64
     };
     let (p, _) = profile(
         &g,
         &ProfileOptions {
-            exact_seconds: 2e7 / plumb::plan::REFERENCE_RATES.bfs_words,
-            diameter_seconds: 2e7 / plumb::plan::REFERENCE_RATES.bfs_words,
+            exact_seconds: 2e7 / plumb::exact::cost::REFERENCE_RATES.bfs_words,
+            diameter_seconds: 2e7 / plumb::exact::cost::REFERENCE_RATES.bfs_words,
             threads: 1,
             ..ProfileOptions::default()
         },

@@ -3,10 +3,10 @@
 mod common;
 
 use common::*;
-use plumb::graph::NodeIds;
-use plumb::ingest::{FormatChoice, HeaderChoice, LoadOptions};
-use plumb::input::source::Compression;
-use plumb::intake::{IdKind, InputFormat};
+use plumb::read::source::Compression;
+use plumb::store::graph::NodeIds;
+use plumb::store::intake::{IdKind, InputFormat};
+use plumb::store::load::{FormatChoice, HeaderChoice, LoadOptions};
 
 #[test]
 fn karate_club_matrix_market_matches_published_degrees() {

@@ -8,12 +8,12 @@ use std::process::Command;
 use common::graph_of;
 
 use plumb::Graph;
-use plumb::csr::Csr;
-use plumb::drift::{Threshold, compare};
-use plumb::generate;
-use plumb::plan::Choice;
+use plumb::models::generate;
+use plumb::monitor::drift::{Threshold, compare};
+use plumb::profile::plan::Choice;
+use plumb::profile::report::Report;
 use plumb::profile::{Groups, ProfileOptions, profile};
-use plumb::report::Report;
+use plumb::store::csr::Csr;
 
 fn graph(csr: Csr) -> Graph {
     graph_of(csr)
@@ -34,7 +34,7 @@ fn estimated(g: &Graph, seed: u64, groups: Groups, margin: f64) -> Report {
 
 /// Thresholds of zero: every significant difference alerts, so the test sees the bare z tests.
 fn zero_thresholds() -> Vec<(String, Threshold)> {
-    plumb::drift::FIGURES
+    plumb::monitor::drift::FIGURES
         .iter()
         .map(|(k, _, _)| (k.to_string(), Threshold::Absolute(0.0)))
         .collect()
@@ -207,7 +207,7 @@ fn a_damaged_history_loses_no_earlier_snapshot() {
     // 1. The last snapshot cut short (a crash mid-write outside plumb's own atomic writes).
     let last = std::fs::read(&snaps[2]).unwrap();
     std::fs::write(&snaps[2], &last[..last.len() / 2]).unwrap();
-    let opened = plumb::history::History::open(&h).unwrap();
+    let opened = plumb::monitor::history::History::open(&h).unwrap();
     assert_eq!(opened.problems.len(), 1);
     assert!(
         opened.problems[0]
@@ -230,11 +230,11 @@ fn a_damaged_history_loses_no_earlier_snapshot() {
     assert!(String::from_utf8_lossy(&out.stderr).contains("not a complete profile report"));
     // 2. A corrupt profile in the middle.
     std::fs::write(&snaps[1], b"{\"schema\": 12}").unwrap();
-    let opened = plumb::history::History::open(&h).unwrap();
+    let opened = plumb::monitor::history::History::open(&h).unwrap();
     assert_eq!(opened.reports().len(), 1);
     // 3. The index gone: rebuilt from the readable snapshots.
     std::fs::remove_file(h.join("index.json")).unwrap();
-    let opened = plumb::history::History::open(&h).unwrap();
+    let opened = plumb::monitor::history::History::open(&h).unwrap();
     assert_eq!(opened.index.entries.len(), 1);
     assert!(opened.problems.iter().any(|p| p.file.contains("000002")));
     assert!(opened.problems.iter().any(|p| p.file == "index.json"));
@@ -249,13 +249,15 @@ fn an_older_index_opens() {
         r#"{"format": "plumb-history", "version": 1, "entries": []}"#,
     )
     .unwrap();
-    assert!(plumb::history::History::open(dir.path()).is_ok());
+    assert!(plumb::monitor::history::History::open(dir.path()).is_ok());
     std::fs::write(
         dir.path().join("index.json"),
         r#"{"format": "plumb-history", "version": 99, "entries": []}"#,
     )
     .unwrap();
-    let err = plumb::history::History::open(dir.path()).err().unwrap();
+    let err = plumb::monitor::history::History::open(dir.path())
+        .err()
+        .unwrap();
     assert!(err.to_string().contains("newer than this plumb reads"));
 }
 
@@ -275,7 +277,7 @@ fn concurrent_adds_both_land() {
     let (mut a, mut b) = (spawn(40), spawn(41));
     assert!(a.wait().unwrap().success());
     assert!(b.wait().unwrap().success());
-    let opened = plumb::history::History::open(&h).unwrap();
+    let opened = plumb::monitor::history::History::open(&h).unwrap();
     assert_eq!(opened.index.entries.len(), 2, "both runs landed");
     assert!(opened.problems.is_empty());
     assert!(!h.join("lock").exists(), "the lock is released");

@@ -7,7 +7,7 @@ mod common;
 use std::collections::{BTreeMap, BTreeSet};
 
 use common::*;
-use plumb::ingest::LoadOptions;
+use plumb::store::load::LoadOptions;
 use proptest::prelude::*;
 
 /// The reference: parse lines naively, keep unordered pairs without loops.
@@ -154,7 +154,7 @@ proptest! {
     /// on the same line (at the same byte offset).
     #[test]
     fn fast_reader_agrees_with_reference_on_byte_soup(bytes in soup(160), piece in 1usize..64) {
-        use plumb::ingest::reference;
+        use plumb::store::reference;
         let opts = LoadOptions { piece_bytes: piece, ..LoadOptions::default() };
         let fast = load_bytes("soup", &bytes, &opts);
         match (fast, reference::edge_list(&bytes)) {
@@ -169,7 +169,7 @@ proptest! {
 
     #[test]
     fn matrix_market_agrees_with_reference(body in soup(80), n in 0u8..6, e in 0u8..6, field in 0usize..3) {
-        use plumb::ingest::reference;
+        use plumb::store::reference;
         let fields = ["pattern", "integer", "real"];
         let mut bytes = format!(
             "%%MatrixMarket matrix coordinate {} general\n% c\n{n} {n} {e}\n",

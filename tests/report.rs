@@ -11,8 +11,8 @@ use std::path::Path;
 use std::process::Command;
 
 use common::*;
+use plumb::profile::report::{Report, schema_json};
 use plumb::profile::{ProfileOptions, profile};
-use plumb::report::{Report, schema_json};
 
 fn root() -> &'static Path {
     Path::new(env!("CARGO_MANIFEST_DIR"))
@@ -82,8 +82,8 @@ fn demo_report_validates_against_the_committed_schema() {
     // An estimated report validates too (intervals, sampled references).
     let g = load_fixture("karate.mtx");
     let opts = ProfileOptions {
-        clustering: plumb::plan::Choice::Estimate,
-        distances: plumb::plan::Choice::Estimate,
+        clustering: plumb::profile::plan::Choice::Estimate,
+        distances: plumb::profile::plan::Choice::Estimate,
         reference_graphs: Some(3),
         ..ProfileOptions::default()
     };
@@ -138,7 +138,7 @@ fn html_page_is_self_contained_and_every_chart_has_data() {
         ..ProfileOptions::default()
     };
     let (p, _) = profile(&g, &opts, &plumb::progress::Quiet);
-    let html = plumb::html::page(&Report::new(p, None, &opts).unwrap());
+    let html = plumb::output::html::page(&Report::new(p, None, &opts).unwrap());
     check_page(&html);
 }
 

@@ -6,10 +6,10 @@ mod common;
 
 use common::*;
 use plumb::Graph;
-use plumb::csr::Csr;
-use plumb::generate;
+use plumb::models::generate;
+use plumb::models::smallworld::{self, Coefficients};
 use plumb::profile::{Profile, ProfileOptions, profile};
-use plumb::smallworld::{self, Coefficients};
+use plumb::store::csr::Csr;
 
 fn graph(csr: Csr) -> Graph {
     graph_of(csr)
@@ -44,7 +44,7 @@ fn span(f: &plumb::figure::Figure) -> (f64, f64) {
 }
 
 fn transitivity(g: &Csr) -> f64 {
-    3.0 * plumb::triangles::total(g) as f64 / plumb::clustering::wedge_total(g) as f64
+    3.0 * plumb::exact::triangles::total(g) as f64 / plumb::exact::clustering::wedge_total(g) as f64
 }
 
 #[test]
@@ -86,7 +86,7 @@ fn erdos_renyi_clustering_is_mean_degree_over_n() {
 #[test]
 fn degree_preserving_swaps_keep_the_sequence_exactly() {
     let g = generate::preferential_attachment(20_000, 4, 2);
-    let (r, rep) = plumb::randomize::degree_preserving(&g, 5.0, 9);
+    let (r, rep) = plumb::models::randomize::degree_preserving(&g, 5.0, 9);
     r.verify().unwrap(); // sorted, symmetric, no loops, no repeats
     assert_eq!(r.edge_count(), g.edge_count());
     assert!((0..20_000).all(|v| r.degree(v) == g.degree(v)));
@@ -101,10 +101,10 @@ fn fronczak_formula_matches_simulation_within_two_percent() {
     let (n, m) = (10_000u32, 50_000u64);
     for seed in [1, 2] {
         let g = generate::gnm(n, m, seed);
-        let c = plumb::components::components(&g);
-        let sub = plumb::components::induced(&g, &c.giant_nodes());
-        let ap = plumb::distances::all_pairs(&sub);
-        let l = plumb::distances::DistanceStats::from_all_pairs(&ap, "", 0)
+        let c = plumb::exact::components::components(&g);
+        let sub = plumb::exact::components::induced(&g, &c.giant_nodes());
+        let ap = plumb::exact::distances::all_pairs(&sub);
+        let l = plumb::exact::distances::DistanceStats::from_all_pairs(&ap, "", 0)
             .mean
             .value;
         let f = smallworld::er_mean_distance(n as f64, 10.0);

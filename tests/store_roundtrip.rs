@@ -4,16 +4,16 @@ mod common;
 
 use common::*;
 use plumb::Graph;
-use plumb::graph::NodeIds;
-use plumb::ingest::LoadOptions;
+use plumb::store::graph::NodeIds;
+use plumb::store::load::LoadOptions;
 
 fn roundtrip(g: &Graph) -> Graph {
     let dir = tempfile::tempdir().unwrap();
     let path = dir.path().join("g.plumb");
-    plumb::store::write(g, &path).unwrap();
+    plumb::store::file::write(g, &path).unwrap();
     // Any command accepts a store where it accepts an edge file: the loader sniffs it.
     let back =
-        plumb::ingest::load(&path, &LoadOptions::default(), &plumb::progress::Quiet).unwrap();
+        plumb::store::load::load(&path, &LoadOptions::default(), &plumb::progress::Quiet).unwrap();
     assert!(back.csr.is_mapped(), "a store file is used in place");
     back.csr.verify().unwrap();
     // No temporary file is left behind.

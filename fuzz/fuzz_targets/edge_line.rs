@@ -4,8 +4,8 @@
 #![no_main]
 
 use libfuzzer_sys::fuzz_target;
-use plumb::ingest::reference;
-use plumb::ingest::scan::{ScanRules, scan_chunk};
+use plumb::store::reference;
+use plumb::read::scan::{ScanRules, scan_chunk};
 
 fuzz_target!(|data: &[u8]| {
     let rules = ScanRules {

@@ -4,8 +4,9 @@
 
 use libfuzzer_sys::fuzz_target;
 use plumb::Error;
-use plumb::ingest::{LoadOptions, load_input, reference};
-use plumb::input::source::InputBytes;
+use plumb::store::load::{LoadOptions, load_input};
+use plumb::store::reference;
+use plumb::read::source::InputBytes;
 
 fuzz_target!(init: {
     // One worker: idle pool threads would spin between runs and slow fuzzing several-fold.
@@ -22,9 +23,9 @@ fuzz_target!(init: {
         memory_budget: 1 << 30,
         ..LoadOptions::default()
     };
-    let sniffed = plumb::input::source::sniff(text);
+    let sniffed = plumb::read::source::sniff(text);
     let fast = load_input(InputBytes::from_vec("fuzz", text.to_vec()), &opts, &plumb::progress::Quiet);
-    if sniffed != plumb::input::source::Sniffed::Text {
+    if sniffed != plumb::read::source::Sniffed::Text {
         // Compressed or store bytes: the reference reads only text; not panicking is the check.
         return;
     }

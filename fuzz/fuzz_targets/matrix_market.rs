@@ -4,8 +4,9 @@
 
 use libfuzzer_sys::fuzz_target;
 use plumb::Error;
-use plumb::ingest::{FormatChoice, LoadOptions, load_input, reference};
-use plumb::input::source::InputBytes;
+use plumb::store::load::{FormatChoice, LoadOptions, load_input};
+use plumb::store::reference;
+use plumb::read::source::InputBytes;
 
 fuzz_target!(init: {
     let _ = rayon::ThreadPoolBuilder::new().num_threads(1).build_global();
@@ -25,7 +26,7 @@ fuzz_target!(init: {
         ..LoadOptions::default()
     };
     let fast = load_input(InputBytes::from_vec("fuzz.mtx", text.clone()), &opts, &plumb::progress::Quiet);
-    if plumb::input::source::sniff(&text) != plumb::input::source::Sniffed::Text {
+    if plumb::read::source::sniff(&text) != plumb::read::source::Sniffed::Text {
         // Compressed or store bytes: the reference reads only text; not panicking is the check.
         return;
     }

@@ -3,12 +3,12 @@
 #![no_main]
 
 use libfuzzer_sys::fuzz_target;
-use plumb::input::source::InputBytes;
+use plumb::read::source::InputBytes;
 
 fuzz_target!(init: {
     let _ = rayon::ThreadPoolBuilder::new().num_threads(1).build_global();
 }, |data: &[u8]| {
-    if let Ok(g) = plumb::store::open_input(InputBytes::from_vec("fuzz.plumb", data.to_vec())) {
+    if let Ok(g) = plumb::store::file::open_input(InputBytes::from_vec("fuzz.plumb", data.to_vec())) {
         // Opening checked offsets and neighbour indices, so walking everything cannot panic.
         let mut sum = 0u64;
         for u in 0..g.node_count() as u32 {

@@ -8,7 +8,7 @@ use std::process::ExitCode;
 
 use clap::{Args as ClapArgs, Parser, Subcommand, ValueEnum};
 use plumb::error::{Error, ErrorClass};
-use plumb::ingest::{self, FormatChoice, HeaderChoice, LoadOptions};
+use plumb::store::load::{self, FormatChoice, HeaderChoice, LoadOptions};
 
 /// Exit codes (documented in the README).
 pub const EXIT_BAD_INPUT: u8 = 3;
@@ -229,7 +229,7 @@ enum SynthModel {
     },
     /// (internal) A generator model with its parameters gathered.
     #[command(skip)]
-    Generated(plumb::generate::Model),
+    Generated(plumb::models::generate::Model),
 }
 
 /// How changes are judged.
@@ -240,8 +240,8 @@ struct CheckArgs {
     alert_level: f64,
     /// Minimum effects worth an alert, e.g. transitivity=0.02,mean-distance=5% (absolute, or
     /// relative with %); others keep their defaults (see the README).
-    #[arg(long, value_name = "FIGURE=MIN", value_delimiter = ',', value_parser = plumb::drift::parse_threshold)]
-    alert_on: Vec<(String, plumb::drift::Threshold)>,
+    #[arg(long, value_name = "FIGURE=MIN", value_delimiter = ',', value_parser = plumb::monitor::drift::parse_threshold)]
+    alert_on: Vec<(String, plumb::monitor::drift::Threshold)>,
     /// Write the verdict as JSON to FILE (`-`: print it instead of the text).
     #[arg(long = "verdict-json", value_name = "FILE")]
     verdict_json: Option<PathBuf>,
@@ -367,7 +367,7 @@ fn parse_registers(s: &str) -> Result<u32, String> {
 
 impl PlanArgs {
     fn options(&self) -> plumb::profile::ProfileOptions {
-        use plumb::plan::{Choice, DistanceEstimator};
+        use plumb::profile::plan::{Choice, DistanceEstimator};
         let (distances, distance_estimator) = match self.distances {
             DistancesArg::Auto => (Choice::Auto, DistanceEstimator::Cheaper),
             DistancesArg::Exact => (Choice::Exact, DistanceEstimator::Cheaper),
@@ -429,7 +429,7 @@ struct InputArgs {
     #[arg(long, default_value_t = 1 << 20, value_name = "BYTES")]
     max_line: usize,
     /// Memory the build may use, e.g. 8G (default: 90% of the memory available now).
-    #[arg(long, value_name = "SIZE", value_parser = plumb::limits::parse_size)]
+    #[arg(long, value_name = "SIZE", value_parser = plumb::store::limits::parse_size)]
     memory_budget: Option<u64>,
 }
 
@@ -470,7 +470,7 @@ impl InputArgs {
             max_line: self.max_line,
             memory_budget: self
                 .memory_budget
-                .unwrap_or_else(plumb::limits::default_memory_budget),
+                .unwrap_or_else(plumb::store::limits::default_memory_budget),
             ..LoadOptions::default()
         }
     }
@@ -496,18 +496,18 @@ fn load_side(
     path: &std::path::Path,
     plan: &PlanArgs,
     bars: &bars::Bars,
-) -> Result<(plumb::report::Report, Option<plumb::Graph>), Error> {
+) -> Result<(plumb::profile::report::Report, Option<plumb::Graph>), Error> {
     if looks_like_report(path) {
-        let r = plumb::history::read_report(path).map_err(|problem| Error::Output {
+        let r = plumb::monitor::history::read_report(path).map_err(|problem| Error::Output {
             path: path.to_path_buf(),
             problem,
         })?;
         return Ok((r, None));
     }
     let opts = plan.options();
-    let g = ingest::load(path, &LoadOptions::default(), bars)?;
+    let g = load::load(path, &LoadOptions::default(), bars)?;
     let (p, _) = plumb::profile::profile(&g, &opts, bars);
-    let r = plumb::report::Report::new(p, Some(path), &opts)?;
+    let r = plumb::profile::report::Report::new(p, Some(path), &opts)?;
     Ok((r, Some(g)))
 }
 
@@ -528,7 +528,7 @@ fn compare(
 ) -> Result<ExitCode, Error> {
     let (ra, ga) = load_side(before, plan, bars)?;
     let (rb, gb) = load_side(after, plan, bars)?;
-    let d = plumb::drift::compare(
+    let d = plumb::monitor::drift::compare(
         &ra,
         &rb,
         (&before.display().to_string(), &after.display().to_string()),
@@ -536,7 +536,7 @@ fn compare(
         &check.alert_on,
     );
     let churn = match (&ga, &gb) {
-        (Some(a), Some(b)) => Some(plumb::drift::churn(a, b)),
+        (Some(a), Some(b)) => Some(plumb::monitor::drift::churn(a, b)),
         _ => None,
     };
     // Without both graphs, the reports' id sketches estimate the churn.
@@ -578,13 +578,13 @@ fn track(
     plan: &PlanArgs,
     bars: &bars::Bars,
 ) -> Result<ExitCode, Error> {
-    let _lock = plumb::history::lock(dir, std::time::Duration::from_secs(600))?;
-    let mut h = plumb::history::History::open(dir)?;
+    let _lock = plumb::monitor::history::lock(dir, std::time::Duration::from_secs(600))?;
+    let mut h = plumb::monitor::history::History::open(dir)?;
     for p in &h.problems {
         eprintln!("plumb: {}: {}: {}", dir.display(), p.file, p.what);
     }
     let source = (input.input.as_os_str() != "-").then_some(input.input.as_path());
-    let sum = source.map(plumb::report::checksum).transpose()?;
+    let sum = source.map(plumb::profile::report::checksum).transpose()?;
     if let Some((_, sum)) = &sum {
         let path = input.input.display();
         if let Some(e) = h.find_input(sum)
@@ -600,9 +600,10 @@ fn track(
         }
     }
     let opts = plan.options();
-    let g = ingest::load(&input.input, &input.options(), bars)?;
+    let g = load::load(&input.input, &input.options(), bars)?;
     let (p, _) = plumb::profile::profile(&g, &opts, bars);
-    let report = plumb::report::Report::with_checksum(p, source, sum, &opts).with_sketch(&g);
+    let report =
+        plumb::profile::report::Report::with_checksum(p, source, sum, &opts).with_sketch(&g);
     let previous = h.latest().map(|(e, r)| (e.clone(), r.clone()));
     let baseline = h.baseline().map(|(e, r)| (e.clone(), r.clone()));
     let label = label.unwrap_or_else(|| {
@@ -612,10 +613,10 @@ fn track(
             .map_or("stdin".into(), |n| n.to_string_lossy().into_owned())
     });
     let entry = h.add(&report, &label, pin)?;
-    let name = |e: &plumb::history::Entry| format!("#{} {}", e.seq, e.label);
+    let name = |e: &plumb::monitor::history::Entry| format!("#{} {}", e.seq, e.label);
     let mut drifts = Vec::new();
     if let Some((e, r)) = &previous {
-        drifts.push(plumb::drift::compare(
+        drifts.push(plumb::monitor::drift::compare(
             r,
             &report,
             (&name(e), &name(&entry)),
@@ -626,7 +627,7 @@ fn track(
     if let Some((e, r)) = &baseline
         && previous.as_ref().is_none_or(|(p, _)| p.seq != e.seq)
     {
-        drifts.push(plumb::drift::compare(
+        drifts.push(plumb::monitor::drift::compare(
             r,
             &report,
             (&name(e), &name(&entry)),
@@ -724,7 +725,7 @@ fn synth(
     seed: u64,
     bars: &bars::Bars,
 ) -> Result<(), Error> {
-    use plumb::generate::Model;
+    use plumb::models::generate::Model;
     let t = std::time::Instant::now();
     let bad = |problem: String| Error::Parameters { problem };
     let model = match model {
@@ -765,15 +766,16 @@ fn synth(
                 return Err(bad("--swaps-per-edge must be >= 0".into()));
             }
             guard(Some(out), &input.input)?;
-            let g = ingest::load(&input.input, &input.options(), bars)?;
-            let (r, rep) = plumb::randomize::degree_preserving(&g.csr, swaps_per_edge, seed);
+            let g = load::load(&input.input, &input.options(), bars)?;
+            let (r, rep) =
+                plumb::models::randomize::degree_preserving(&g.csr, swaps_per_edge, seed);
             let what = format!(
                 "degree-preserving randomisation of {} by double-edge swaps (Maslov & Sneppen \
                  2002), seed {seed}",
                 input.input.display()
             );
             w.comment(&format!("plumb synth: {what}"));
-            for (a, b) in plumb::randomize::edge_list(&r) {
+            for (a, b) in plumb::models::randomize::edge_list(&r) {
                 w.labelled(&g.ids.label_bytes(a), &g.ids.label_bytes(b));
             }
             let extra = format!(
@@ -785,7 +787,7 @@ fn synth(
         }
         SynthModel::Config { input } => {
             guard(Some(out), &input.input)?;
-            let g = ingest::load(&input.input, &input.options(), bars)?;
+            let g = load::load(&input.input, &input.options(), bars)?;
             let degrees: Vec<u32> = (0..g.node_count() as u32)
                 .map(|v| g.csr.degree(v))
                 .collect();
@@ -794,7 +796,7 @@ fn synth(
                 input.input.display()
             );
             w.comment(&format!("plumb synth: {what}"));
-            let rep = plumb::randomize::configuration(&degrees, seed, &mut |a, b| {
+            let rep = plumb::models::randomize::configuration(&degrees, seed, &mut |a, b| {
                 w.labelled(&g.ids.label_bytes(a), &g.ids.label_bytes(b))
             })
             .map_err(bad)?;
@@ -810,7 +812,7 @@ fn synth(
             w.comment(&format!("plumb synth: {what}"));
             let n = m.nodes() as usize;
             let mut touched = vec![false; n];
-            plumb::generate::stream(&m, seed, &mut |a, b| {
+            plumb::models::generate::stream(&m, seed, &mut |a, b| {
                 touched[a as usize] = true;
                 touched[b as usize] = true;
                 w.edge(a, b)
@@ -863,13 +865,13 @@ pub fn run(args: Args) -> Result<ExitCode, Error> {
             for out in [json.as_deref(), html.as_deref(), per_node.as_deref()] {
                 guard(out, &input.input)?;
             }
-            let g = ingest::load(&input.input, &input.options(), &bars)?;
+            let g = load::load(&input.input, &input.options(), &bars)?;
             let (p, table) = plumb::profile::profile(&g, &opts, &bars);
             if let Some(path) = &per_node {
-                plumb::pernode::write(&g, &table, path)?;
+                plumb::output::pernode::write(&g, &table, path)?;
             }
             let source = (input.input.as_os_str() != "-").then_some(input.input.as_path());
-            let mut report = plumb::report::Report::new(p, source, &opts)?;
+            let mut report = plumb::profile::report::Report::new(p, source, &opts)?;
             if json.is_some() {
                 // JSON reports are kept and compared later: carry the id sketches for churn.
                 report = report.with_sketch(&g);
@@ -880,7 +882,7 @@ pub fn run(args: Args) -> Result<ExitCode, Error> {
                 s
             };
             if let Some(path) = &html {
-                plumb::outfile::write_atomic(path, plumb::html::page(&report).as_bytes())?;
+                plumb::outfile::write_atomic(path, plumb::output::html::page(&report).as_bytes())?;
             }
             match json.as_deref() {
                 Some(p) if p.as_os_str() == "-" => print!("{}", json_text()),
@@ -907,7 +909,7 @@ pub fn run(args: Args) -> Result<ExitCode, Error> {
                 println!("  {:<11}{}", "wrote", written.join(" · "));
             }
         }
-        Command::Schema => print!("{}", plumb::report::schema_json()),
+        Command::Schema => print!("{}", plumb::profile::report::schema_json()),
         Command::Track {
             history,
             input,
@@ -928,11 +930,11 @@ pub fn run(args: Args) -> Result<ExitCode, Error> {
             out,
             check,
         } => {
-            let h = plumb::history::History::open(&history)?;
+            let h = plumb::monitor::history::History::open(&history)?;
             for p in &h.problems {
                 eprintln!("plumb: {}: {}: {}", history.display(), p.file, p.what);
             }
-            let page = plumb::trend::page(&h, check.alert_level, &check.alert_on);
+            let page = plumb::monitor::trend::page(&h, check.alert_level, &check.alert_on);
             plumb::outfile::write_atomic(&out, page.as_bytes())?;
             println!(
                 "wrote {}: {} snapshots of {}",
@@ -943,7 +945,7 @@ pub fn run(args: Args) -> Result<ExitCode, Error> {
         }
         Command::Intake { input, json } => {
             guard(json.as_deref(), &input.input)?;
-            let g = ingest::load(&input.input, &input.options(), &bars)?;
+            let g = load::load(&input.input, &input.options(), &bars)?;
             emit(
                 json.as_deref(),
                 || show::intake_json(&g),
@@ -952,9 +954,9 @@ pub fn run(args: Args) -> Result<ExitCode, Error> {
         }
         Command::Pack { input, out } => {
             guard(Some(&out), &input.input)?;
-            let g = ingest::load(&input.input, &input.options(), &bars)?;
+            let g = load::load(&input.input, &input.options(), &bars)?;
             let t = std::time::Instant::now();
-            let bytes = plumb::store::write(&g, &out)?;
+            let bytes = plumb::store::file::write(&g, &out)?;
             print!("{}", show::intake_text(&g));
             println!(
                 "  {:<11}{} ({}) in {:.2} s",
@@ -966,7 +968,7 @@ pub fn run(args: Args) -> Result<ExitCode, Error> {
         }
         Command::Verify { store } => {
             let t = std::time::Instant::now();
-            let g = plumb::store::open(&store)?;
+            let g = plumb::store::file::open(&store)?;
             let opened = t.elapsed().as_secs_f64();
             g.csr.verify().map_err(|problem| Error::Store {
                 path: store.clone(),
@@ -1002,9 +1004,15 @@ pub fn run(args: Args) -> Result<ExitCode, Error> {
             };
             use plumb::progress::{Progress, Unit};
             bars.stage("sweep", Some(p.len() as u64), Unit::Items);
-            let sweep = plumb::sweep::watts_strogatz(nodes, degree, &p, graphs, &opts, &mut |_| {
-                bars.advance(1)
-            })
+            let sweep = plumb::models::sweep::watts_strogatz(
+                nodes,
+                degree,
+                &p,
+                graphs,
+                &opts.measure(),
+                seed,
+                &mut |_| bars.advance(1),
+            )
             .map_err(|problem| Error::Parameters { problem })?;
             bars.finish();
             emit(
@@ -1019,9 +1027,9 @@ pub fn run(args: Args) -> Result<ExitCode, Error> {
                 action: "create folder",
                 source: e,
             })?;
-            let platform = plumb::demo::Platform::default();
+            let platform = plumb::models::demo::Platform::default();
             for week in 0..weeks {
-                let text = plumb::demo::weekly_export(&platform, seed, week);
+                let text = plumb::models::demo::weekly_export(&platform, seed, week);
                 let path = out.join(format!("replies-2026-W{}.tsv.zst", 40 + week));
                 let bytes = plumb::outfile::write_zstd_frames(&path, &text, 19, 1 << 20)?;
                 println!(

@@ -4,9 +4,9 @@ use std::fmt::Write as _;
 
 use plumb::Graph;
 use plumb::figure::{Figure, Method};
-use plumb::input::source::Compression;
-use plumb::intake::{IdKind, InputFormat};
 use plumb::profile::{Distances, Profile};
+use plumb::read::source::Compression;
+use plumb::store::intake::{IdKind, InputFormat};
 
 /// 1234567 -> "1,234,567".
 pub fn count(n: u64) -> String {
@@ -567,7 +567,7 @@ pub fn to_json<T: serde::Serialize>(key: &str, value: &T) -> String {
     s
 }
 
-pub fn sweep_text(s: &plumb::sweep::Sweep) -> String {
+pub fn sweep_text(s: &plumb::models::sweep::Sweep) -> String {
     let mut out = String::new();
     let graphs = s.rows.first().map_or(0, |r| r.graphs);
     let level = s
@@ -611,7 +611,10 @@ pub fn sweep_text(s: &plumb::sweep::Sweep) -> String {
     out
 }
 
-pub fn drift_text(d: &plumb::drift::Drift, churn: Option<&plumb::drift::ExactChurn>) -> String {
+pub fn drift_text(
+    d: &plumb::monitor::drift::Drift,
+    churn: Option<&plumb::monitor::drift::ExactChurn>,
+) -> String {
     let mut out = String::new();
     let _ = writeln!(out, "  ── {} → {}", d.before, d.after);
     row(
@@ -648,8 +651,8 @@ pub fn drift_text(d: &plumb::drift::Drift, churn: Option<&plumb::drift::ExactChu
             "same"
         };
         let min = match c.threshold {
-            plumb::drift::Threshold::Absolute(t) => format!("min {t}"),
-            plumb::drift::Threshold::Relative(t) => format!("min {}%", 100.0 * t),
+            plumb::monitor::drift::Threshold::Absolute(t) => format!("min {t}"),
+            plumb::monitor::drift::Threshold::Relative(t) => format!("min {}%", 100.0 * t),
         };
         row(
             &mut out,
@@ -685,7 +688,7 @@ pub fn drift_text(d: &plumb::drift::Drift, churn: Option<&plumb::drift::ExactChu
     out
 }
 
-pub fn sketch_churn_text(c: &plumb::sketch::Churn) -> String {
+pub fn sketch_churn_text(c: &plumb::estimate::sketch::Churn) -> String {
     let mut out = String::new();
     let f = |x: &Figure| match x.interval {
         Some(iv) => format!(
@@ -723,8 +726,8 @@ pub fn intake_json(g: &Graph) -> String {
     #[derive(serde::Serialize)]
     struct Out<'a> {
         plumb_version: &'static str,
-        intake: &'a plumb::intake::Intake,
-        degree: plumb::graph::DegreeSummary,
+        intake: &'a plumb::store::intake::Intake,
+        degree: plumb::store::graph::DegreeSummary,
         store_bytes: u64,
     }
     let out = Out {

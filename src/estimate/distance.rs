@@ -13,10 +13,10 @@ use rustc_hash::FxHashMap;
 
 use super::interval::z_for;
 use super::sample::mean_interval;
-use crate::csr::Csr;
-use crate::distances::{effective_diameter, sources_batch_each};
+use crate::exact::distances::{effective_diameter, sources_batch_each};
 use crate::figure::{Figure, Interval};
 use crate::numeric::{lower_quantile, mean_variance};
+use crate::store::csr::Csr;
 
 /// Bootstrap resamples for the effective diameter.
 const RESAMPLES: usize = 1000;
@@ -289,15 +289,15 @@ mod tests {
 
     #[test]
     fn census_is_exact_and_threads_do_not_matter() {
-        let g = crate::generate::watts_strogatz(500, 6, 0.1, 2);
-        let ap = crate::distances::all_pairs(&g);
+        let g = crate::models::generate::watts_strogatz(500, 6, 0.1, 2);
+        let ap = crate::exact::distances::all_pairs(&g);
         let e = estimate(&g, 500, 0.95, 3);
         assert_eq!(e.sampled_pairs, ap.pairs);
-        let exact = crate::distances::DistanceStats::from_all_pairs(&ap, "all", 0);
+        let exact = crate::exact::distances::DistanceStats::from_all_pairs(&ap, "all", 0);
         assert!((e.mean.value - exact.mean.value).abs() < 1e-12);
         assert_eq!(e.mean.std_error, Some(0.0));
         assert_eq!(e.effective_diameter.value, exact.effective_diameter.value);
-        let g = crate::generate::watts_strogatz(3000, 6, 0.1, 2);
+        let g = crate::models::generate::watts_strogatz(3000, 6, 0.1, 2);
         let one = rayon::ThreadPoolBuilder::new()
             .num_threads(1)
             .build()

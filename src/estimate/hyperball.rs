@@ -15,10 +15,10 @@ use rayon::prelude::*;
 use xxhash_rust::xxh3::xxh3_64_with_seed;
 
 use super::interval::t_for;
-use crate::csr::Csr;
-use crate::distances::effective_diameter;
+use crate::exact::distances::effective_diameter;
 use crate::figure::{Figure, Interval};
 use crate::numeric::det_sum;
+use crate::store::csr::Csr;
 
 /// Nodes per work unit; fixed so that sums are taken in the same order on any thread count.
 const CHUNK: usize = 1024;
@@ -385,7 +385,7 @@ mod tests {
 
     #[test]
     fn same_on_any_thread_count() {
-        let g = crate::generate::watts_strogatz(5000, 6, 0.05, 3);
+        let g = crate::models::generate::watts_strogatz(5000, 6, 0.05, 3);
         let opts = BallOptions {
             repeats: 2,
             ..Default::default()

@@ -1,8 +1,10 @@
-//! Estimators with honest confidence intervals, for figures too costly to compute exactly.
-//! Every estimator takes a seed and gives the same result on any thread count.
+//! Estimators with intervals: wedge and node sampling for clustering, sampled-source BFS and
+//! HyperBall for distances, HyperLogLog id sketches for churn, and the interval arithmetic they
+//! share. Uses `exact` (each estimator has an exact twin) and `build`.
 
 pub mod distance;
 pub mod hyperball;
 pub mod interval;
 pub mod sample;
+pub mod sketch;
 pub mod wedges;

@@ -10,9 +10,9 @@ use rand_chacha::ChaCha8Rng;
 use rayon::prelude::*;
 
 use super::interval::{hoeffding_samples, wilson};
-use crate::clustering::{ClusteringStats, DegreeClustering};
-use crate::csr::Csr;
+use crate::exact::clustering::{ClusteringStats, DegreeClustering};
 use crate::figure::{Figure, Interval};
+use crate::store::csr::Csr;
 
 /// Samples per independently seeded block: blocks make the result the same on any thread count.
 const BLOCK: u64 = 4096;
@@ -76,7 +76,7 @@ pub fn estimate(g: &Csr, samples: u64, level: f64, seed: u64) -> WedgeEstimate {
     let mut cum = Vec::with_capacity(n);
     let mut acc: u128 = 0;
     for v in 0..n as u32 {
-        acc += crate::clustering::wedges_at(g.degree(v));
+        acc += crate::exact::clustering::wedges_at(g.degree(v));
         cum.push(acc);
     }
     let wedges = acc;
@@ -205,7 +205,7 @@ pub fn sampled_stats(
     let a = average_clustering(g, k, level, seed);
     ClusteringStats {
         triangles: w.triangles,
-        wedges: crate::clustering::wedge_total(g),
+        wedges: crate::exact::clustering::wedge_total(g),
         transitivity: w.transitivity,
         average_zeros: a.average_zeros,
         average_deg2: a.average_deg2,
@@ -265,7 +265,7 @@ mod tests {
             estimate(&Csr::from_edges(9, &star), 5000, 0.95, 1).closed,
             0
         );
-        let g = crate::generate::watts_strogatz(2000, 8, 0.1, 4);
+        let g = crate::models::generate::watts_strogatz(2000, 8, 0.1, 4);
         let one = rayon::ThreadPoolBuilder::new()
             .num_threads(1)
             .build()
@@ -276,9 +276,11 @@ mod tests {
 
     #[test]
     fn degree_bins_match_the_exact_bins() {
-        let g = crate::generate::preferential_attachment(3000, 3, 5);
-        let t = crate::triangles::count(&g);
-        let exact = crate::clustering::stats(&g, &t, &crate::clustering::local(&g, &t)).by_degree;
+        let g = crate::models::generate::preferential_attachment(3000, 3, 5);
+        let t = crate::exact::triangles::count(&g);
+        let exact =
+            crate::exact::clustering::stats(&g, &t, &crate::exact::clustering::local(&g, &t))
+                .by_degree;
         let est = clustering_by_degree(&g, 40_000, 0.95, 3);
         assert_eq!(exact.len(), est.len());
         for (x, e) in exact.iter().zip(&est) {

@@ -4,12 +4,12 @@
 use std::collections::{BTreeMap, BTreeSet};
 
 use plumb::Graph;
-use plumb::ingest::{self, LoadOptions};
-use plumb::input::source::InputBytes;
 use plumb::progress::Quiet;
+use plumb::read::source::InputBytes;
+use plumb::store::load::{self, LoadOptions};
 
 pub fn load_bytes(name: &str, bytes: &[u8], opts: &LoadOptions) -> plumb::Result<Graph> {
-    ingest::load_input(InputBytes::from_vec(name, bytes.to_vec()), opts, &Quiet)
+    load::load_input(InputBytes::from_vec(name, bytes.to_vec()), opts, &Quiet)
 }
 
 pub fn load_text(text: &str) -> Graph {
@@ -75,17 +75,17 @@ pub fn zstd_frames(bytes: &[u8], frame: usize) -> Vec<u8> {
 
 /// Load a file from tests/data with the default options.
 pub fn load_fixture(name: &str) -> Graph {
-    ingest::load(&data(name), &LoadOptions::default(), &Quiet).expect("fixture loads")
+    load::load(&data(name), &LoadOptions::default(), &Quiet).expect("fixture loads")
 }
 
 /// A graph over dense ids 0..n, as the generators build them.
-pub fn graph_of(csr: plumb::csr::Csr) -> Graph {
+pub fn graph_of(csr: plumb::store::csr::Csr) -> Graph {
     let n = csr.node_count();
     let m = csr.edge_count();
     Graph {
         csr,
-        ids: plumb::graph::NodeIds::Range { first: 0, len: n },
-        intake: plumb::intake::Intake::generated("test", n as u64, m, 0),
+        ids: plumb::store::graph::NodeIds::Range { first: 0, len: n },
+        intake: plumb::store::intake::Intake::generated("test", n as u64, m, 0),
     }
 }
 

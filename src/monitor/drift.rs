@@ -1,0 +1,280 @@
+//! Did the structure change between two profiles? For each figure both carry, the difference, its
+//! standard error from both figures' standard errors (independent samples: se² = se_a² + se_b²),
+//! an interval, and whether the change is significant — a two-sided z test, with the level split
+//! over the estimated figures compared (Bonferroni), so one comparison of many figures raises a
+//! false alarm about as often as the level says. A change alerts when it is significant *and* at
+//! least the user's minimum effect for that figure. Exact figures have no sampling error: any
+//! difference is real, and the minimum effect alone decides.
+
+use serde::{Deserialize, Serialize};
+
+use crate::estimate::interval::z_for;
+use crate::figure::{Figure, Interval};
+use crate::profile::Distances;
+use crate::profile::report::Report;
+
+/// A minimum effect worth alerting on: absolute, or relative to the earlier value.
+#[derive(Debug, Clone, Copy, PartialEq, Serialize, Deserialize, schemars::JsonSchema)]
+#[serde(tag = "kind", content = "value", rename_all = "lowercase")]
+pub enum Threshold {
+    Absolute(f64),
+    Relative(f64),
+}
+
+impl Threshold {
+    fn met(&self, before: f64, diff: f64) -> bool {
+        match *self {
+            Threshold::Absolute(t) => diff.abs() >= t,
+            Threshold::Relative(t) => diff.abs() >= t * before.abs(),
+        }
+    }
+}
+
+/// The figures compared, their keys for thresholds, and the default minimum effects. The
+/// defaults are this project's own choice (common practice, no published source): large enough
+/// that ordinary week-to-week growth of a live network does not page anyone.
+pub const FIGURES: &[(&str, &str, Threshold)] = &[
+    ("nodes", "nodes", Threshold::Relative(0.10)),
+    ("edges", "edges", Threshold::Relative(0.10)),
+    ("mean-degree", "mean degree", Threshold::Relative(0.10)),
+    // A few small components come and go every week; the giant component's share is the
+    // figure that catches a real split.
+    ("components", "components", Threshold::Absolute(100.0)),
+    (
+        "giant-share",
+        "share of nodes in the giant component",
+        Threshold::Absolute(0.02),
+    ),
+    ("transitivity", "transitivity", Threshold::Absolute(0.01)),
+    (
+        "average-clustering",
+        "average local clustering (degree < 2 as 0)",
+        Threshold::Absolute(0.01),
+    ),
+    ("mean-distance", "mean distance", Threshold::Relative(0.02)),
+    (
+        "effective-diameter",
+        "effective diameter (90%)",
+        Threshold::Relative(0.05),
+    ),
+];
+
+/// The figures of a report by key.
+pub fn figures_of(r: &Report) -> Vec<(&'static str, Figure)> {
+    let p = &r.profile;
+    let d = &p.degrees;
+    let mut out = vec![
+        ("nodes", Figure::exact(d.nodes as f64, "count")),
+        ("edges", Figure::exact(d.edges as f64, "count")),
+        ("mean-degree", Figure::exact(d.mean, "2m/n")),
+        (
+            "components",
+            Figure::exact(p.components.count as f64, "union-find"),
+        ),
+        (
+            "giant-share",
+            Figure::exact(p.components.giant_fraction, "union-find"),
+        ),
+    ];
+    if let Some(c) = &p.clustering {
+        out.push(("transitivity", c.transitivity.clone()));
+        out.push(("average-clustering", c.average_zeros.clone()));
+    }
+    match &p.distances {
+        Distances::Exact(s) => {
+            out.push(("mean-distance", s.mean.clone()));
+            out.push(("effective-diameter", s.effective_diameter.clone()));
+        }
+        Distances::Estimated(e) => {
+            out.push(("mean-distance", e.mean.clone()));
+            out.push(("effective-diameter", e.effective_diameter.clone()));
+        }
+        _ => {}
+    }
+    out
+}
+
+/// One figure's change.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize, schemars::JsonSchema)]
+pub struct Change {
+    pub key: String,
+    pub label: String,
+    pub before: f64,
+    pub after: f64,
+    /// after − before, with its standard error and interval (at the comparison's level,
+    /// Bonferroni-adjusted for estimated figures).
+    pub difference: Figure,
+    pub significant: bool,
+    pub threshold: Threshold,
+    /// Significant and at least the threshold.
+    pub alert: bool,
+}
+
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize, schemars::JsonSchema)]
+pub struct Drift {
+    /// Labels of the two sides, e.g. snapshot labels or file names.
+    pub before: String,
+    pub after: String,
+    /// Family-wise level of the significance tests.
+    pub level: f64,
+    /// Estimated figures among those compared (the Bonferroni family size).
+    pub tested: usize,
+    pub changes: Vec<Change>,
+    pub alerts: usize,
+}
+
+/// Compare `a` (before) with `b` (after) at `level` (e.g. 0.99), with per-figure thresholds
+/// overriding the defaults.
+pub fn compare(
+    a: &Report,
+    b: &Report,
+    names: (&str, &str),
+    level: f64,
+    thresholds: &[(String, Threshold)],
+) -> Drift {
+    let fa = figures_of(a);
+    let fb = figures_of(b);
+    let pairs: Vec<(&str, &Figure, &Figure)> = fa
+        .iter()
+        .filter_map(|(k, x)| fb.iter().find(|(j, _)| j == k).map(|(_, y)| (*k, x, y)))
+        .collect();
+    let se = |f: &Figure| f.std_error.unwrap_or(0.0);
+    let tested = pairs
+        .iter()
+        .filter(|(_, x, y)| se(x) > 0.0 || se(y) > 0.0)
+        .count();
+    // Each test at 1 − (1 − level)/tested, so that all together alarm at most 1 − level.
+    let each = 1.0 - (1.0 - level) / tested.max(1) as f64;
+    let z = z_for(each);
+    let mut changes = Vec::new();
+    for (key, x, y) in pairs {
+        let (label, default) = FIGURES
+            .iter()
+            .find(|(k, _, _)| *k == key)
+            .map(|(_, l, t)| (*l, *t))
+            .expect("every compared figure has a default");
+        let threshold = thresholds
+            .iter()
+            .find(|(k, _)| k == key)
+            .map_or(default, |(_, t)| *t);
+        let diff = y.value - x.value;
+        let s = (se(x).powi(2) + se(y).powi(2)).sqrt();
+        let significant = if s > 0.0 {
+            diff.abs() > z * s
+        } else {
+            diff != 0.0
+        };
+        let difference = if s > 0.0 {
+            Figure::estimate(
+                diff,
+                "difference of independent estimates, z interval (Bonferroni over the estimated figures)",
+                2,
+                s,
+                Interval {
+                    low: diff - z * s,
+                    high: diff + z * s,
+                    level: each,
+                },
+            )
+        } else {
+            Figure::exact(diff, "difference of exact figures")
+        };
+        let alert = significant && threshold.met(x.value, diff);
+        changes.push(Change {
+            key: key.into(),
+            label: label.into(),
+            before: x.value,
+            after: y.value,
+            difference,
+            significant,
+            threshold,
+            alert,
+        });
+    }
+    let alerts = changes.iter().filter(|c| c.alert).count();
+    Drift {
+        before: names.0.into(),
+        after: names.1.into(),
+        level,
+        tested,
+        changes,
+        alerts,
+    }
+}
+
+/// Parse `key=value` thresholds: `transitivity=0.01` (absolute) or `mean-distance=2%`
+/// (relative).
+pub fn parse_threshold(s: &str) -> Result<(String, Threshold), String> {
+    let (k, v) = s
+        .split_once('=')
+        .ok_or_else(|| format!("expected FIGURE=VALUE such as transitivity=0.01, got {s:?}"))?;
+    if !FIGURES.iter().any(|(key, _, _)| *key == k) {
+        let keys: Vec<&str> = FIGURES.iter().map(|f| f.0).collect();
+        return Err(format!("unknown figure {k:?}; one of: {}", keys.join(", ")));
+    }
+    let t = match v.strip_suffix('%') {
+        Some(p) => p
+            .parse::<f64>()
+            .map(|x| Threshold::Relative(x / 100.0))
+            .map_err(|_| format!("bad percentage {v:?}"))?,
+        None => v
+            .parse::<f64>()
+            .map(Threshold::Absolute)
+            .map_err(|_| format!("bad number {v:?}"))?,
+    };
+    Ok((k.to_string(), t))
+}
+
+/// Nodes and edges that appeared or vanished between two graphs, by their original ids (exact
+/// up to 128-bit hash collisions of the ids, about 10⁻²⁰ for a billion edges).
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize, Deserialize, schemars::JsonSchema)]
+pub struct ExactChurn {
+    pub nodes_appeared: u64,
+    pub nodes_vanished: u64,
+    pub nodes_kept: u64,
+    pub edges_appeared: u64,
+    pub edges_vanished: u64,
+    pub edges_kept: u64,
+}
+
+fn node_keys(g: &crate::Graph) -> Vec<u128> {
+    (0..g.node_count() as u32)
+        .map(|v| xxhash_rust::xxh3::xxh3_128(&g.ids.label_bytes(v)))
+        .collect()
+}
+
+fn edge_keys(g: &crate::Graph, nodes: &[u128]) -> rustc_hash::FxHashSet<u128> {
+    let mut out = rustc_hash::FxHashSet::default();
+    out.reserve(g.edge_count() as usize);
+    for u in 0..g.node_count() as u32 {
+        for &v in g.csr.neighbors(u) {
+            if u < v {
+                let (a, b) = (nodes[u as usize], nodes[v as usize]);
+                let (lo, hi) = if a <= b { (a, b) } else { (b, a) };
+                let mut bytes = [0u8; 32];
+                bytes[..16].copy_from_slice(&lo.to_le_bytes());
+                bytes[16..].copy_from_slice(&hi.to_le_bytes());
+                out.insert(xxhash_rust::xxh3::xxh3_128(&bytes));
+            }
+        }
+    }
+    out
+}
+
+/// Churn from `a` (before) to `b` (after).
+pub fn churn(a: &crate::Graph, b: &crate::Graph) -> ExactChurn {
+    let (na, nb) = (node_keys(a), node_keys(b));
+    let sa: rustc_hash::FxHashSet<u128> = na.iter().copied().collect();
+    let kept_nodes = nb.iter().filter(|k| sa.contains(k)).count() as u64;
+    let ea = edge_keys(a, &na);
+    let eb = edge_keys(b, &nb);
+    let kept_edges = eb.iter().filter(|k| ea.contains(k)).count() as u64;
+    ExactChurn {
+        nodes_appeared: nb.len() as u64 - kept_nodes,
+        nodes_vanished: na.len() as u64 - kept_nodes,
+        nodes_kept: kept_nodes,
+        edges_appeared: eb.len() as u64 - kept_edges,
+        edges_vanished: ea.len() as u64 - kept_edges,
+        edges_kept: kept_edges,
+    }
+}

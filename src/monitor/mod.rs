@@ -1,0 +1,6 @@
+//! Monitoring: history directories of reports, comparisons between two reports or graphs, the
+//! `track` workflow and the trend page. Uses `profile` and `output`.
+
+pub mod drift;
+pub mod history;
+pub mod trend;

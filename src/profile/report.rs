@@ -1,0 +1,147 @@
+//! The profile as a versioned, self-describing document: what was read (size and checksum of the
+//! input), with which settings (seed, level, budget, margins), by which plumb, and every figure.
+//! Its JSON Schema is generated from these types (doc comments become descriptions, with units)
+//! and committed as `docs/profile.schema.json`; a test keeps the two identical.
+
+use std::path::Path;
+
+use serde::{Deserialize, Serialize};
+
+use crate::error::{Error, Result};
+use crate::profile::{Groups, Profile, ProfileOptions};
+
+/// Name of the document kind, for readers that receive many kinds.
+pub const SCHEMA_NAME: &str = "plumb-profile";
+/// Bumped on any change that could break a reader; additions of optional fields do not bump it.
+pub const SCHEMA_VERSION: u32 = 1;
+
+/// The input file as given.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize, schemars::JsonSchema)]
+pub struct InputFile {
+    /// The path as given on the command line (`<stdin>` for standard input).
+    pub path: String,
+    /// Size of the file as stored (compressed if it is), in bytes; `null` for standard input.
+    pub bytes: Option<u64>,
+    /// XXH3-64 of the file's bytes as stored, 16 hex digits; `null` for standard input. Two
+    /// snapshots with the same checksum are the same input.
+    pub xxh3: Option<String>,
+}
+
+/// The settings that shaped the figures.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize, schemars::JsonSchema)]
+pub struct Settings {
+    /// Seed of every random choice.
+    pub seed: u64,
+    /// Confidence level of every interval (e.g. 0.95).
+    pub level: f64,
+    /// Time each exact figure group may be predicted to take, in seconds.
+    pub exact_seconds: f64,
+    /// Time the exact diameter search may take, in seconds.
+    pub diameter_seconds: f64,
+    /// Half-width of the clustering intervals when sampled (absolute).
+    pub clustering_margin: f64,
+    /// Half-width of the mean-distance interval when estimated, relative to the mean.
+    pub distance_margin: f64,
+    /// Sampled reference graphs of each kind requested (`null` = by budget).
+    pub reference_graphs: Option<usize>,
+    /// Figure groups requested.
+    pub groups: Groups,
+    /// Worker threads the cost predictions assumed.
+    pub threads: usize,
+}
+
+/// A profile report: schema name and version, plumb's version, the input, the settings, and the
+/// profile with every figure's method and interval.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize, schemars::JsonSchema)]
+pub struct Report {
+    /// Always "plumb-profile".
+    pub schema: String,
+    /// Version of this document's layout.
+    pub schema_version: u32,
+    /// Version of the plumb that wrote it.
+    pub plumb_version: String,
+    pub input: InputFile,
+    pub settings: Settings,
+    pub profile: Profile,
+    /// HyperLogLog++ sketches of the node ids and edges by original id (precision 14, hash seed
+    /// 0), so that two reports can be compared for churn without their input files. Absent when
+    /// not computed. Layout: the `hyperloglogplus` crate's serde form, wrapped by plumb.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    #[schemars(with = "Option<serde_json::Value>")]
+    pub ids: Option<crate::estimate::sketch::IdSketch>,
+}
+
+/// Size and XXH3-64 of a file, read through a memory map (the checksum runs at memory speed).
+pub fn checksum(path: &Path) -> Result<(u64, String)> {
+    let file = std::fs::File::open(path).map_err(|e| Error::io(path, "open", e))?;
+    let len = file
+        .metadata()
+        .map_err(|e| Error::io(path, "read metadata of", e))?
+        .len();
+    if len == 0 {
+        return Ok((0, format!("{:016x}", xxhash_rust::xxh3::xxh3_64(&[]))));
+    }
+    // SAFETY: the map is read-only and dropped before returning; plumb never writes its inputs.
+    let map = unsafe { memmap2::Mmap::map(&file) }.map_err(|e| Error::io(path, "map", e))?;
+    Ok((len, format!("{:016x}", xxhash_rust::xxh3::xxh3_64(&map))))
+}
+
+impl Report {
+    /// Wrap `profile` with the facts of its input (`path`, `None` for standard input); the
+    /// input's size and checksum are read here.
+    pub fn new(profile: Profile, path: Option<&Path>, opts: &ProfileOptions) -> Result<Report> {
+        let sum = path.map(checksum).transpose()?;
+        Ok(Report::with_checksum(profile, path, sum, opts))
+    }
+
+    /// As [`Report::new`], with the input's size and checksum already known.
+    pub fn with_checksum(
+        profile: Profile,
+        path: Option<&Path>,
+        sum: Option<(u64, String)>,
+        opts: &ProfileOptions,
+    ) -> Report {
+        let (bytes, xxh3) = sum.map_or((None, None), |(b, h)| (Some(b), Some(h)));
+        Report {
+            schema: SCHEMA_NAME.into(),
+            schema_version: SCHEMA_VERSION,
+            plumb_version: env!("CARGO_PKG_VERSION").into(),
+            input: InputFile {
+                path: path.map_or("<stdin>".into(), |p| p.display().to_string()),
+                bytes,
+                xxh3,
+            },
+            settings: Settings {
+                seed: opts.seed,
+                level: opts.level,
+                exact_seconds: opts.exact_seconds,
+                diameter_seconds: opts.diameter_seconds,
+                clustering_margin: opts.clustering_tolerance,
+                distance_margin: opts.distance_tolerance,
+                reference_graphs: opts.reference_graphs,
+                groups: opts.groups,
+                threads: opts.threads,
+            },
+            profile,
+            ids: None,
+        }
+    }
+
+    /// Attach the id sketches of `g` (the graph this report profiles).
+    pub fn with_sketch(mut self, g: &crate::Graph) -> Report {
+        self.ids = Some(crate::estimate::sketch::IdSketch::of_graph(
+            g,
+            crate::estimate::sketch::DEFAULT_PRECISION,
+            0,
+        ));
+        self
+    }
+}
+
+/// The JSON Schema of [`Report`], pretty-printed with a final newline.
+pub fn schema_json() -> String {
+    let schema = schemars::schema_for!(Report);
+    let mut s = serde_json::to_string_pretty(&schema).unwrap_or_default();
+    s.push('\n');
+    s
+}

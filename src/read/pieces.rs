@@ -1,0 +1,153 @@
+//! Feeding newline-aligned pieces of text to worker threads: straight from a memory map (split at
+//! newlines, parsed in parallel) or from a decoder thread (pipelined: one thread decompresses
+//! while the others parse). Each worker keeps its own accumulator; callers merge them, so results
+//! do not depend on which worker saw which piece.
+
+use std::sync::Mutex;
+use std::sync::atomic::{AtomicUsize, Ordering};
+use std::sync::mpsc::sync_channel;
+
+use crate::progress::Progress;
+use crate::read::source::{self, Compression, DecodeInfo, StreamFault, TextChunk};
+
+/// Where the text comes from.
+#[derive(Clone, Copy)]
+pub struct Source<'a> {
+    pub data: &'a [u8],
+    pub compression: Compression,
+    /// Target piece size in bytes.
+    pub piece: usize,
+    pub max_line: usize,
+}
+
+/// Split plain text into pieces of about `target` bytes that end at a newline.
+pub fn split_at_newlines(data: &[u8], target: usize) -> Vec<(usize, usize)> {
+    let mut out = Vec::new();
+    let mut start = 0;
+    while start < data.len() {
+        let guess = start.saturating_add(target.max(1)).min(data.len());
+        let end = if guess >= data.len() {
+            data.len()
+        } else {
+            memchr::memchr(b'\n', &data[guess..]).map_or(data.len(), |i| guess + i + 1)
+        };
+        out.push((start, end));
+        start = end;
+    }
+    out
+}
+
+/// Run `work(state, index, bytes, byte_base)` over every piece on `threads` workers, each with
+/// its own `init()` state. `work` returns false to stop the run (pieces already started finish;
+/// pieces are handed out in order, so every piece before the stopping one is processed).
+pub fn run<W: Send>(
+    src: Source<'_>,
+    threads: usize,
+    progress: &dyn Progress,
+    init: impl Fn() -> W + Sync,
+    work: impl Fn(&mut W, usize, &[u8], u64) -> bool + Sync,
+) -> Result<(Vec<W>, DecodeInfo), StreamFault> {
+    let threads = threads.max(1);
+    // Index of the earliest piece that asked to stop; later pieces are skipped, earlier ones
+    // always run (their line counts place the error).
+    let stop_at = AtomicUsize::new(usize::MAX);
+    let stop = |i: usize| {
+        stop_at.fetch_min(i, Ordering::Relaxed);
+    };
+    let stopped_before = |i: usize| stop_at.load(Ordering::Relaxed) < i;
+    match src.compression {
+        Compression::None => {
+            let pieces = split_at_newlines(src.data, src.piece);
+            let next = AtomicUsize::new(0);
+            let worker = || {
+                let mut st = init();
+                loop {
+                    let i = next.fetch_add(1, Ordering::Relaxed);
+                    let Some(&(a, b)) = pieces.get(i) else { break };
+                    if stopped_before(i) {
+                        break;
+                    }
+                    if !work(&mut st, i, &src.data[a..b], a as u64) {
+                        stop(i);
+                    }
+                    progress.advance((b - a) as u64);
+                }
+                st
+            };
+            // This thread is one of the workers; small inputs spawn no thread at all.
+            let helpers = threads.min(pieces.len()).saturating_sub(1);
+            let states = std::thread::scope(|s| {
+                let handles: Vec<_> = (0..helpers).map(|_| s.spawn(worker)).collect();
+                let mut states = vec![worker()];
+                states.extend(join_all(handles));
+                states
+            });
+            let info = DecodeInfo {
+                frames: 0,
+                text_bytes: src.data.len() as u64,
+            };
+            Ok((states, info))
+        }
+        c => {
+            let (tx, rx) = sync_channel::<TextChunk>(2 * threads);
+            let rx = Mutex::new(rx);
+            std::thread::scope(|s| {
+                let decoder = s.spawn(|| {
+                    let tx = tx;
+                    source::decode_chunks(src.data, c, src.piece, src.max_line, &mut |chunk| {
+                        !stopped_before(chunk.index) && tx.send(chunk).is_ok()
+                    })
+                });
+                let handles: Vec<_> = (0..threads)
+                    .map(|_| {
+                        s.spawn(|| {
+                            let mut st = init();
+                            loop {
+                                // Hold the lock only to receive, never while working.
+                                let got = rx.lock().map(|r| r.recv());
+                                let Ok(Ok(chunk)) = got else { break };
+                                if stopped_before(chunk.index) {
+                                    continue;
+                                }
+                                if !work(&mut st, chunk.index, &chunk.bytes, chunk.byte_base) {
+                                    stop(chunk.index);
+                                }
+                                progress.advance(chunk.bytes.len() as u64);
+                            }
+                            st
+                        })
+                    })
+                    .collect();
+                let states = join_all(handles);
+                let info = decoder
+                    .join()
+                    .unwrap_or_else(|p| std::panic::resume_unwind(p))?;
+                Ok((states, info))
+            })
+        }
+    }
+}
+
+fn join_all<W>(handles: Vec<std::thread::ScopedJoinHandle<'_, W>>) -> Vec<W> {
+    handles
+        .into_iter()
+        .map(|h| h.join().unwrap_or_else(|p| std::panic::resume_unwind(p)))
+        .collect()
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn newline_split_covers_everything() {
+        let data = b"1 2\n33 44\n5 6\n7 8";
+        for t in [1, 3, 5, 100] {
+            let p = split_at_newlines(data, t);
+            assert_eq!(p.first().unwrap().0, 0);
+            assert_eq!(p.last().unwrap().1, data.len());
+            assert!(p.windows(2).all(|w| w[0].1 == w[1].0));
+            assert!(p[..p.len() - 1].iter().all(|&(_, e)| data[e - 1] == b'\n'));
+        }
+    }
+}

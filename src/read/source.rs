@@ -1,0 +1,479 @@
+//! Getting input bytes: memory-mapped files, standard input, compression sniffed from magic bytes,
+//! and decoding compressed streams into newline-aligned text chunks.
+
+use std::io::Read;
+use std::path::{Path, PathBuf};
+
+use rayon::prelude::*;
+
+use crate::error::{Error, Result};
+use crate::read::magic;
+
+/// Compression of an input, recognised by its first bytes (never by its name).
+#[derive(
+    Debug, Clone, Copy, PartialEq, Eq, serde::Serialize, serde::Deserialize, schemars::JsonSchema,
+)]
+#[serde(rename_all = "lowercase")]
+pub enum Compression {
+    None,
+    Zstd,
+    Gzip,
+}
+
+/// What the first bytes of an input say it is.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum Sniffed {
+    Text,
+    Compressed(Compression),
+    Store,
+    /// A compression plumb does not read, by name.
+    Unsupported(&'static str),
+}
+
+/// Classify an input by its magic bytes.
+pub fn sniff(data: &[u8]) -> Sniffed {
+    let starts = |m: &[u8]| data.starts_with(m);
+    if starts(&magic::ZSTD) {
+        return Sniffed::Compressed(Compression::Zstd);
+    }
+    // A zstd skippable frame (magic 0x184D2A50..=0x184D2A5F, little-endian) may lead a zstd file.
+    if data.len() >= 4 && data[1..4] == [0x2A, 0x4D, 0x18] && data[0] & 0xF0 == 0x50 {
+        return Sniffed::Compressed(Compression::Zstd);
+    }
+    if starts(&magic::GZIP) {
+        return Sniffed::Compressed(Compression::Gzip);
+    }
+    if starts(magic::STORE) {
+        return Sniffed::Store;
+    }
+    if starts(&magic::XZ) {
+        return Sniffed::Unsupported("xz");
+    }
+    if starts(&magic::BZIP2) && data.len() > 3 && data[3].is_ascii_digit() {
+        return Sniffed::Unsupported("bzip2");
+    }
+    if starts(&magic::LZ4) {
+        return Sniffed::Unsupported("lz4");
+    }
+    if starts(&magic::ZIP) {
+        return Sniffed::Unsupported("zip");
+    }
+    Sniffed::Text
+}
+
+/// The bytes of one input, mapped or read, never modified.
+pub struct InputBytes {
+    pub path: PathBuf,
+    bytes: Backing,
+}
+
+enum Backing {
+    Mapped(memmap2::Mmap),
+    Owned(Vec<u8>),
+}
+
+impl InputBytes {
+    /// Open `path` read-only and map it; `-` reads all of standard input into memory.
+    pub fn open(path: &Path) -> Result<Self> {
+        if path.as_os_str() == "-" {
+            let mut buf = Vec::new();
+            std::io::stdin()
+                .lock()
+                .read_to_end(&mut buf)
+                .map_err(|e| Error::io("<stdin>", "read standard input", e))?;
+            return Ok(InputBytes {
+                path: PathBuf::from("<stdin>"),
+                bytes: Backing::Owned(buf),
+            });
+        }
+        let file = std::fs::File::open(path).map_err(|e| Error::io(path, "open", e))?;
+        let meta = file.metadata().map_err(|e| Error::io(path, "stat", e))?;
+        if meta.is_dir() {
+            return Err(Error::io(
+                path,
+                "read",
+                std::io::Error::other("it is a directory"),
+            ));
+        }
+        if meta.len() == 0 {
+            // Mapping an empty file fails on some systems; an empty buffer says the same.
+            return Ok(InputBytes {
+                path: path.to_path_buf(),
+                bytes: Backing::Owned(Vec::new()),
+            });
+        }
+        // SAFETY: the map is read-only. plumb never writes its inputs; if another process
+        // truncates the file while it is mapped, reads fault (SIGBUS), which no file API can
+        // prevent short of copying the whole input.
+        let map = unsafe { memmap2::Mmap::map(&file) }.map_err(|e| Error::io(path, "map", e))?;
+        #[cfg(unix)]
+        {
+            let _ = map.advise(memmap2::Advice::Sequential);
+        }
+        Ok(InputBytes {
+            path: path.to_path_buf(),
+            bytes: Backing::Mapped(map),
+        })
+    }
+
+    /// Wrap bytes already in memory (tests, benchmarks, generated data).
+    pub fn from_vec(path: impl Into<PathBuf>, bytes: Vec<u8>) -> Self {
+        InputBytes {
+            path: path.into(),
+            bytes: Backing::Owned(bytes),
+        }
+    }
+
+    pub fn bytes(&self) -> &[u8] {
+        match &self.bytes {
+            Backing::Mapped(m) => m,
+            Backing::Owned(v) => v,
+        }
+    }
+
+    /// Hand the bytes over as a read-only map (the store opener keeps it alive for zero-copy
+    /// access). Bytes read from a pipe are copied into an anonymous map once.
+    pub(crate) fn into_map(self) -> std::io::Result<memmap2::Mmap> {
+        match self.bytes {
+            Backing::Mapped(m) => Ok(m),
+            Backing::Owned(v) => {
+                let mut m = memmap2::MmapMut::map_anon(v.len().max(1))?;
+                m[..v.len()].copy_from_slice(&v);
+                let m = m.make_read_only()?;
+                Ok(m)
+            }
+        }
+    }
+}
+
+/// A newline-aligned piece of (decompressed) text.
+pub struct TextChunk {
+    /// Position in the stream of chunks.
+    pub index: usize,
+    /// Offset of the chunk's first byte in the decompressed text.
+    pub byte_base: u64,
+    pub bytes: Vec<u8>,
+}
+
+/// What went wrong while producing chunks.
+#[derive(Debug)]
+pub enum StreamFault {
+    /// The compressed data is corrupt or truncated.
+    Codec { problem: String, offset: u64 },
+    /// No newline within the line-length limit; the overlong line starts the chunk `index`.
+    LongLine { index: usize, byte_base: u64 },
+}
+
+/// Split decompressed data into newline-aligned chunks of about `target` bytes.
+struct Stitcher {
+    buf: Vec<u8>,
+    target: usize,
+    max_line: usize,
+    index: usize,
+    byte_base: u64,
+}
+
+impl Stitcher {
+    fn new(target: usize, max_line: usize) -> Self {
+        Stitcher {
+            buf: Vec::with_capacity(target + 64 * 1024),
+            target,
+            max_line,
+            index: 0,
+            byte_base: 0,
+        }
+    }
+
+    /// Emit every full chunk the buffer holds. Returns false when the consumer asked to stop.
+    fn drain(
+        &mut self,
+        emit: &mut dyn FnMut(TextChunk) -> bool,
+        at_end: bool,
+    ) -> Result<bool, StreamFault> {
+        let mut head = 0;
+        let result = loop {
+            let avail = self.buf.len() - head;
+            if !(avail >= self.target || (at_end && avail > 0)) {
+                break Ok(true);
+            }
+            // Cut at the last newline within the target size, or the first one after it.
+            let rest = &self.buf[head..];
+            let window = self.target.min(rest.len());
+            let cut = memchr::memrchr(b'\n', &rest[..window])
+                .map(|i| i + 1)
+                .or_else(|| memchr::memchr(b'\n', &rest[window..]).map(|i| window + i + 1));
+            let cut = match cut {
+                Some(c) => c,
+                None if at_end => avail,
+                None if avail > self.max_line => {
+                    break Err(StreamFault::LongLine {
+                        index: self.index,
+                        byte_base: self.byte_base,
+                    });
+                }
+                None => break Ok(true),
+            };
+            let bytes = if head == 0 && avail - cut <= cut {
+                // Hand the buffer over and keep the short remainder: one small copy.
+                let tail = self.buf[cut..].to_vec();
+                let mut b = std::mem::replace(&mut self.buf, tail);
+                b.truncate(cut);
+                b
+            } else {
+                head += cut;
+                self.buf[head - cut..head].to_vec()
+            };
+            let chunk = TextChunk {
+                index: self.index,
+                byte_base: self.byte_base,
+                bytes,
+            };
+            self.index += 1;
+            self.byte_base += cut as u64;
+            if !emit(chunk) {
+                break Ok(false);
+            }
+        };
+        if head > 0 {
+            self.buf.drain(..head);
+        }
+        result
+    }
+}
+
+/// Summary of a decode run.
+#[derive(Debug, Default, Clone, Copy)]
+pub struct DecodeInfo {
+    pub frames: u64,
+    pub text_bytes: u64,
+}
+
+/// Decode `data` and hand newline-aligned chunks to `emit` in order. `emit` returns false to stop
+/// early. zstd files with several frames are decoded frame-parallel; single-frame zstd and gzip
+/// stream on this thread.
+pub fn decode_chunks(
+    data: &[u8],
+    compression: Compression,
+    target: usize,
+    max_line: usize,
+    emit: &mut dyn FnMut(TextChunk) -> bool,
+) -> Result<DecodeInfo, StreamFault> {
+    let mut st = Stitcher::new(target, max_line);
+    let mut info = DecodeInfo::default();
+    match compression {
+        Compression::None => {
+            // Used for standard input and in-memory text: copy through the same stitcher.
+            for piece in data.chunks(target.max(1)) {
+                st.buf.extend_from_slice(piece);
+                if !st.drain(emit, false)? {
+                    return Ok(info);
+                }
+            }
+        }
+        Compression::Zstd => {
+            let frames = zstd_frames(data)?;
+            info.frames = frames.len() as u64;
+            if frames.len() == 1 {
+                let (start, end) = frames[0];
+                let dec =
+                    zstd::stream::read::Decoder::with_buffer(&data[start..end]).map_err(|e| {
+                        StreamFault::Codec {
+                            problem: format!("unreadable ({e})"),
+                            offset: start as u64,
+                        }
+                    })?;
+                if !stream_into(dec, &mut st, emit, |e| StreamFault::Codec {
+                    problem: format!("corrupt in the frame starting at byte {start} ({e})"),
+                    offset: start as u64,
+                })? {
+                    return Ok(info);
+                }
+            } else {
+                // Decode a batch of frames in parallel, then stitch them in order.
+                let batch = 2 * rayon::current_num_threads().max(1);
+                for group in frames.chunks(batch) {
+                    let decoded: Vec<Result<Vec<u8>, StreamFault>> = group
+                        .par_iter()
+                        .map(|&(s, e)| decode_zstd_frame(&data[s..e], s as u64))
+                        .collect();
+                    for d in decoded {
+                        st.buf.extend_from_slice(&d?);
+                        if !st.drain(emit, false)? {
+                            return Ok(info);
+                        }
+                    }
+                }
+            }
+        }
+        Compression::Gzip => {
+            let dec = flate2::bufread::MultiGzDecoder::new(data);
+            info.frames = 1;
+            if !stream_into(dec, &mut st, emit, |e| StreamFault::Codec {
+                problem: if e.kind() == std::io::ErrorKind::UnexpectedEof {
+                    "truncated (it ends inside a member)".into()
+                } else {
+                    format!("corrupt ({e})")
+                },
+                offset: data.len() as u64,
+            })? {
+                return Ok(info);
+            }
+        }
+    }
+    st.drain(emit, true)?;
+    info.text_bytes = st.byte_base;
+    Ok(info)
+}
+
+fn stream_into(
+    mut r: impl Read,
+    st: &mut Stitcher,
+    emit: &mut dyn FnMut(TextChunk) -> bool,
+    fault: impl Fn(std::io::Error) -> StreamFault,
+) -> Result<bool, StreamFault> {
+    loop {
+        let len = st.buf.len();
+        let want = (st.target + 64 * 1024).saturating_sub(len).max(64 * 1024);
+        st.buf.resize(len + want, 0);
+        let got = match r.read(&mut st.buf[len..]) {
+            Ok(n) => n,
+            Err(e) if e.kind() == std::io::ErrorKind::Interrupted => 0,
+            Err(e) => {
+                st.buf.truncate(len);
+                return Err(fault(e));
+            }
+        };
+        st.buf.truncate(len + got);
+        if got == 0 {
+            return Ok(true);
+        }
+        if !st.drain(emit, false)? {
+            return Ok(false);
+        }
+    }
+}
+
+/// Byte ranges of the zstd frames in `data`, checked for truncation before anything is decoded.
+pub fn zstd_frames(data: &[u8]) -> Result<Vec<(usize, usize)>, StreamFault> {
+    let mut frames = Vec::new();
+    let mut pos = 0;
+    while pos < data.len() {
+        let rest = &data[pos..];
+        let len = zstd::zstd_safe::find_frame_compressed_size(rest).map_err(|code| {
+            let name = zstd::zstd_safe::get_error_name(code);
+            if name.contains("Src size is incorrect") || rest.len() < 18 {
+                StreamFault::Codec {
+                    problem: format!(
+                        "truncated: the frame starting at byte {pos} is cut off at the end of \
+                         the file"
+                    ),
+                    offset: data.len() as u64,
+                }
+            } else {
+                StreamFault::Codec {
+                    problem: format!("corrupt in the frame starting at byte {pos} ({name})"),
+                    offset: pos as u64,
+                }
+            }
+        })?;
+        // Skippable frames carry no data.
+        if !(rest.len() >= 4 && rest[1..4] == [0x2A, 0x4D, 0x18] && rest[0] & 0xF0 == 0x50) {
+            frames.push((pos, pos + len));
+        }
+        pos += len;
+    }
+    if frames.is_empty() {
+        frames.push((0, 0));
+    }
+    Ok(frames)
+}
+
+fn decode_zstd_frame(frame: &[u8], offset: u64) -> Result<Vec<u8>, StreamFault> {
+    let mut out = Vec::new();
+    if let Ok(Some(size)) = zstd::zstd_safe::get_frame_content_size(frame) {
+        // The declared size is only a hint; never trust it with an unbounded allocation.
+        out.reserve(size.min(1 << 30) as usize);
+    }
+    if frame.is_empty() {
+        return Ok(out);
+    }
+    let mut dec =
+        zstd::stream::read::Decoder::with_buffer(frame).map_err(|e| StreamFault::Codec {
+            problem: format!("unreadable ({e})"),
+            offset,
+        })?;
+    dec.read_to_end(&mut out).map_err(|e| StreamFault::Codec {
+        problem: format!("corrupt in the frame starting at byte {offset} ({e})"),
+        offset,
+    })?;
+    Ok(out)
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    fn collect(data: &[u8], c: Compression, target: usize) -> Vec<Vec<u8>> {
+        let mut out = Vec::new();
+        decode_chunks(data, c, target, 1 << 20, &mut |ch| {
+            out.push(ch.bytes);
+            true
+        })
+        .unwrap();
+        out
+    }
+
+    #[test]
+    fn chunks_are_line_aligned_and_complete() {
+        let text: Vec<u8> = (0..5000)
+            .flat_map(|i| format!("{i} {}\n", i + 1).into_bytes())
+            .collect();
+        let z = zstd::encode_all(&text[..], 3).unwrap();
+        for (data, c) in [(&text[..], Compression::None), (&z[..], Compression::Zstd)] {
+            let chunks = collect(data, c, 1000);
+            assert!(chunks.len() > 10);
+            assert!(chunks.iter().all(|c| c.ends_with(b"\n")));
+            assert_eq!(chunks.concat(), text);
+        }
+    }
+
+    #[test]
+    fn multi_frame_zstd() {
+        let a = zstd::encode_all(&b"1 2\n3 "[..], 1).unwrap();
+        let b = zstd::encode_all(&b"4\n5 6"[..], 1).unwrap();
+        let both = [a, b].concat();
+        assert_eq!(zstd_frames(&both).unwrap().len(), 2);
+        assert_eq!(
+            collect(&both, Compression::Zstd, 2).concat(),
+            b"1 2\n3 4\n5 6"
+        );
+    }
+
+    #[test]
+    fn truncated_zstd_is_reported() {
+        let text: Vec<u8> = (0..1000)
+            .flat_map(|i| format!("{i} 7\n").into_bytes())
+            .collect();
+        let z = zstd::encode_all(&text[..], 3).unwrap();
+        let cut = &z[..z.len() - 5];
+        let err = decode_chunks(cut, Compression::Zstd, 1000, 1 << 20, &mut |_| true).unwrap_err();
+        assert!(
+            matches!(err, StreamFault::Codec { ref problem, .. } if problem.contains("truncated")),
+            "{err:?}"
+        );
+    }
+
+    #[test]
+    fn sniffing() {
+        assert_eq!(sniff(b"1 2\n"), Sniffed::Text);
+        assert_eq!(
+            sniff(&zstd::encode_all(&b"x"[..], 1).unwrap()),
+            Sniffed::Compressed(Compression::Zstd)
+        );
+        assert_eq!(
+            sniff(b"\x1f\x8b\x08"),
+            Sniffed::Compressed(Compression::Gzip)
+        );
+        assert_eq!(sniff(b"\xfd7zXZ\x00"), Sniffed::Unsupported("xz"));
+    }
+}

@@ -1,0 +1,411 @@
+//! The store file: a built graph saved so it reopens in place (memory-mapped, no copy).
+//!
+//! Layout, all little-endian, every section starting on a 64-byte boundary:
+//!
+//! | bytes   | field |
+//! |---------|-------|
+//! | 0..8    | magic `\x89PLB\r\n\x1a\n` |
+//! | 8..12   | format version (1) |
+//! | 12..16  | header length (128) |
+//! | 16..20  | flags (0) |
+//! | 20..24  | id kind: 0 range, 1 integer table, 2 text |
+//! | 24..32  | nodes n |
+//! | 32..40  | adjacency entries (2 x edges) |
+//! | 40..48  | first id (id kind 0) |
+//! | 48..104 | byte positions of: offsets, targets, ids, id bytes, id bytes length, intake, intake length |
+//! | 104..112| file length |
+//! | 112..120| checksum |
+//! | 120..128| zero |
+//!
+//! Sections: offsets `[u64; n+1]`, targets `[u32; 2m]`, ids (`[u64; n]` for an integer table,
+//! `[u64; n+1]` offsets into the id bytes for text), id bytes, and the intake report as JSON.
+//! The checksum is xxh3-64 of the first 112 header bytes followed by the xxh3-64 digests of the
+//! body (everything after the header) cut into 16 MiB blocks, so it is computed in parallel.
+
+use std::io::{Seek, SeekFrom, Write};
+use std::path::Path;
+use std::sync::Arc;
+
+use rayon::prelude::*;
+use xxhash_rust::xxh3::xxh3_64;
+
+use crate::error::{Error, Result};
+use crate::outfile::AtomicFile;
+use crate::read::source::InputBytes;
+use crate::store::csr::Csr;
+use crate::store::graph::{Graph, NodeIds};
+use crate::store::intake::Intake;
+use crate::store::slab::Slab;
+
+#[cfg(target_endian = "big")]
+compile_error!(
+    "the store format is little-endian and read in place; big-endian hosts are not supported"
+);
+
+pub(crate) const MAGIC: &[u8; 8] = crate::read::magic::STORE;
+pub const VERSION: u32 = 1;
+const HEADER: usize = 128;
+const ALIGN: u64 = 64;
+const BLOCK: usize = 16 << 20;
+
+/// Header fields after the magic.
+#[derive(Debug, Clone, Copy, Default)]
+struct Header {
+    version: u32,
+    header_len: u32,
+    flags: u32,
+    id_kind: u32,
+    n: u64,
+    entries: u64,
+    id_first: u64,
+    offsets_at: u64,
+    targets_at: u64,
+    ids_at: u64,
+    id_bytes_at: u64,
+    id_bytes_len: u64,
+    intake_at: u64,
+    intake_len: u64,
+    file_len: u64,
+    checksum: u64,
+}
+
+impl Header {
+    fn encode(&self) -> [u8; HEADER] {
+        let mut b = [0u8; HEADER];
+        b[..8].copy_from_slice(MAGIC);
+        let words32 = [self.version, self.header_len, self.flags, self.id_kind];
+        for (i, w) in words32.iter().enumerate() {
+            b[8 + 4 * i..12 + 4 * i].copy_from_slice(&w.to_le_bytes());
+        }
+        let words64 = [
+            self.n,
+            self.entries,
+            self.id_first,
+            self.offsets_at,
+            self.targets_at,
+            self.ids_at,
+            self.id_bytes_at,
+            self.id_bytes_len,
+            self.intake_at,
+            self.intake_len,
+            self.file_len,
+            self.checksum,
+        ];
+        for (i, w) in words64.iter().enumerate() {
+            b[24 + 8 * i..32 + 8 * i].copy_from_slice(&w.to_le_bytes());
+        }
+        b
+    }
+
+    fn decode(b: &[u8]) -> Header {
+        let u32_at = |i: usize| u32::from_le_bytes(b[i..i + 4].try_into().unwrap());
+        let u64_at = |i: usize| u64::from_le_bytes(b[i..i + 8].try_into().unwrap());
+        Header {
+            version: u32_at(8),
+            header_len: u32_at(12),
+            flags: u32_at(16),
+            id_kind: u32_at(20),
+            n: u64_at(24),
+            entries: u64_at(32),
+            id_first: u64_at(40),
+            offsets_at: u64_at(48),
+            targets_at: u64_at(56),
+            ids_at: u64_at(64),
+            id_bytes_at: u64_at(72),
+            id_bytes_len: u64_at(80),
+            intake_at: u64_at(88),
+            intake_len: u64_at(96),
+            file_len: u64_at(104),
+            checksum: u64_at(112),
+        }
+    }
+}
+
+fn checksum(header: &[u8], body: &[u8]) -> u64 {
+    let digests: Vec<u8> = body
+        .par_chunks(BLOCK)
+        .map(xxh3_64)
+        .collect::<Vec<u64>>()
+        .iter()
+        .flat_map(|d| d.to_le_bytes())
+        .collect();
+    let mut all = header[..112].to_vec();
+    all.extend_from_slice(&digests);
+    xxh3_64(&all)
+}
+
+/// Streams the body, hashing 16 MiB blocks as they pass.
+struct BodyWriter<'a> {
+    out: &'a mut AtomicFile,
+    pos: u64,
+    block: xxhash_rust::xxh3::Xxh3,
+    in_block: usize,
+    digests: Vec<u8>,
+}
+
+impl BodyWriter<'_> {
+    fn put(&mut self, mut bytes: &[u8]) -> std::io::Result<()> {
+        self.out.write_all(bytes)?;
+        self.pos += bytes.len() as u64;
+        while !bytes.is_empty() {
+            let take = (BLOCK - self.in_block).min(bytes.len());
+            self.block.update(&bytes[..take]);
+            self.in_block += take;
+            bytes = &bytes[take..];
+            if self.in_block == BLOCK {
+                self.digests
+                    .extend_from_slice(&self.block.digest().to_le_bytes());
+                self.block.reset();
+                self.in_block = 0;
+            }
+        }
+        Ok(())
+    }
+
+    /// Pad to the next section boundary and return the position there.
+    fn align(&mut self) -> std::io::Result<u64> {
+        let pad = (ALIGN - self.pos % ALIGN) % ALIGN;
+        self.put(&vec![0u8; pad as usize])?;
+        Ok(self.pos)
+    }
+
+    fn finish(mut self) -> Vec<u8> {
+        if self.in_block > 0 {
+            self.digests
+                .extend_from_slice(&self.block.digest().to_le_bytes());
+        }
+        self.digests
+    }
+}
+
+/// Save `graph` to `path` atomically. Returns the file size.
+pub fn write(graph: &Graph, path: &Path) -> Result<u64> {
+    let mut file = AtomicFile::create(path)?;
+    let intake = serde_json::to_vec(&graph.intake).map_err(|e| Error::Output {
+        path: path.to_path_buf(),
+        problem: format!("cannot encode the intake report: {e}"),
+    })?;
+    let mut h = Header {
+        version: VERSION,
+        header_len: HEADER as u32,
+        n: graph.csr.node_count() as u64,
+        entries: graph.csr.targets().len() as u64,
+        ..Header::default()
+    };
+    let io = |f: &AtomicFile, e| f.fail(e);
+    file.write_all(&[0u8; HEADER]).map_err(|e| io(&file, e))?;
+    let mut body = BodyWriter {
+        out: &mut file,
+        pos: HEADER as u64,
+        block: xxhash_rust::xxh3::Xxh3::new(),
+        in_block: 0,
+        digests: Vec::new(),
+    };
+    let result = (|| -> std::io::Result<()> {
+        h.offsets_at = body.align()?;
+        body.put(bytemuck::cast_slice(graph.csr.offsets()))?;
+        h.targets_at = body.align()?;
+        body.put(bytemuck::cast_slice(graph.csr.targets()))?;
+        h.ids_at = body.align()?;
+        match &graph.ids {
+            NodeIds::Range { first, .. } => {
+                h.id_kind = 0;
+                h.id_first = *first;
+            }
+            NodeIds::Ints(v) => {
+                h.id_kind = 1;
+                body.put(bytemuck::cast_slice(v))?;
+            }
+            NodeIds::Text { offsets, bytes } => {
+                h.id_kind = 2;
+                body.put(bytemuck::cast_slice(offsets))?;
+                h.id_bytes_at = body.align()?;
+                h.id_bytes_len = bytes.len() as u64;
+                body.put(bytes)?;
+            }
+        }
+        h.intake_at = body.align()?;
+        h.intake_len = intake.len() as u64;
+        body.put(&intake)?;
+        Ok(())
+    })();
+    result.map_err(|e| body.out.fail(e))?;
+    h.file_len = body.pos;
+    let digests = body.finish();
+    let mut head = h.encode();
+    let mut all = head[..112].to_vec();
+    all.extend_from_slice(&digests);
+    h.checksum = xxh3_64(&all);
+    head = h.encode();
+    let w = file.writer();
+    w.seek(SeekFrom::Start(0))
+        .and_then(|_| w.write_all(&head))
+        .map_err(|e| Error::io(path, "write", e))?;
+    file.commit()?;
+    Ok(h.file_len)
+}
+
+/// Open a store file in place.
+pub fn open(path: &Path) -> Result<Graph> {
+    open_input(InputBytes::open(path)?)
+}
+
+/// Open store bytes already opened (mapped files are used in place; standard input is copied
+/// into an anonymous map first).
+pub fn open_input(input: InputBytes) -> Result<Graph> {
+    let path = input.path.clone();
+    let len = input.bytes().len();
+    // An anonymous map (for piped bytes) may be longer than `len`; only `len` bytes count.
+    let map = input.into_map().map_err(|e| Error::io(&path, "map", e))?;
+    open_checked(&path, Arc::new(map), len)
+}
+
+fn open_checked(path: &Path, map: Arc<memmap2::Mmap>, len: usize) -> Result<Graph> {
+    let bad = |problem: String| Error::Store {
+        path: path.to_path_buf(),
+        problem,
+    };
+    let data: &[u8] = &map[..len];
+    if data.len() < HEADER || &data[..8] != MAGIC {
+        return Err(bad(format!(
+            "too short or wrong magic ({} bytes; a store starts with a {HEADER}-byte header)",
+            data.len()
+        )));
+    }
+    let h = Header::decode(data);
+    if h.version > VERSION {
+        return Err(bad(format!(
+            "written by a newer plumb (format version {}); this build reads version {VERSION}",
+            h.version
+        )));
+    }
+    if h.version == 0 || h.header_len as usize != HEADER || h.flags != 0 {
+        return Err(bad("the header is corrupt".into()));
+    }
+    if h.file_len != data.len() as u64 {
+        return Err(bad(format!(
+            "the header says {} bytes but the file has {} ({})",
+            h.file_len,
+            data.len(),
+            if (data.len() as u64) < h.file_len {
+                "truncated"
+            } else {
+                "trailing bytes"
+            }
+        )));
+    }
+    if checksum(&data[..HEADER], &data[HEADER..]) != h.checksum {
+        return Err(bad(
+            "checksum mismatch: the file is corrupt (re-create it with `plumb pack`)".into(),
+        ));
+    }
+    // The checksum guards against accidents; the checks below make a crafted file unable to
+    // cause out-of-bounds reads later.
+    if h.n > crate::store::ids::MAX_NODES {
+        return Err(bad(format!("claims {} nodes", h.n)));
+    }
+    let n = h.n as usize;
+    let section = |what: &str, at: u64, len: u64, size: u64| -> Result<(usize, usize)> {
+        len.checked_mul(size)
+            .and_then(|b| at.checked_add(b))
+            .filter(|&end| end <= h.file_len && at >= HEADER as u64)
+            .ok_or_else(|| bad(format!("the {what} section lies outside the file")))?;
+        Ok((at as usize, len as usize))
+    };
+    let (at, len) = section("offsets", h.offsets_at, h.n + 1, 8)?;
+    let offsets: Slab<u64> =
+        Slab::mapped(&map, at, len).ok_or_else(|| bad("misaligned offsets".into()))?;
+    let (at, len) = section("targets", h.targets_at, h.entries, 4)?;
+    let targets: Slab<u32> =
+        Slab::mapped(&map, at, len).ok_or_else(|| bad("misaligned targets".into()))?;
+    check_offsets(&offsets, h.entries).map_err(&bad)?;
+    if targets.par_iter().any(|&t| t as u64 >= h.n) {
+        return Err(bad("a neighbour index is out of range".into()));
+    }
+    let ids = match h.id_kind {
+        0 => {
+            if h.id_first.checked_add(h.n).is_none() {
+                return Err(bad("the id range overflows".into()));
+            }
+            NodeIds::Range {
+                first: h.id_first,
+                len: n,
+            }
+        }
+        1 => {
+            let (at, len) = section("ids", h.ids_at, h.n, 8)?;
+            NodeIds::Ints(Slab::mapped(&map, at, len).ok_or_else(|| bad("misaligned ids".into()))?)
+        }
+        2 => {
+            let (at, len) = section("ids", h.ids_at, h.n + 1, 8)?;
+            let offs: Slab<u64> =
+                Slab::mapped(&map, at, len).ok_or_else(|| bad("misaligned ids".into()))?;
+            check_offsets(&offs, h.id_bytes_len).map_err(&bad)?;
+            let (at, len) = section("id bytes", h.id_bytes_at, h.id_bytes_len, 1)?;
+            let bytes = Slab::mapped(&map, at, len).ok_or_else(|| bad("bad id bytes".into()))?;
+            NodeIds::Text {
+                offsets: offs,
+                bytes,
+            }
+        }
+        k => return Err(bad(format!("unknown id kind {k}"))),
+    };
+    let (at, len) = section("intake", h.intake_at, h.intake_len, 1)?;
+    let intake: Intake = serde_json::from_slice(&data[at..at + len])
+        .map_err(|e| bad(format!("the intake report is unreadable: {e}")))?;
+    Ok(Graph {
+        csr: Csr::from_parts(offsets, targets),
+        ids,
+        intake,
+    })
+}
+
+fn check_offsets(o: &[u64], end: u64) -> Result<(), String> {
+    if o.first() != Some(&0) || o.last() != Some(&end) {
+        return Err("offsets do not span their array".into());
+    }
+    if o.par_windows(2).any(|w| w[0] > w[1]) {
+        return Err("offsets decrease".into());
+    }
+    Ok(())
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    /// A store whose header was edited, then resealed with a valid checksum: the structural
+    /// checks must still refuse it.
+    fn tampered(edit: impl Fn(&mut Header)) -> String {
+        let text = b"1 2\n2 3\n3 1\n".to_vec();
+        let g = crate::store::load::load_input(
+            InputBytes::from_vec("t", text),
+            &crate::store::load::LoadOptions::default(),
+            &crate::progress::Quiet,
+        )
+        .unwrap();
+        let dir = tempfile::tempdir().unwrap();
+        let p = dir.path().join("s.plumb");
+        write(&g, &p).unwrap();
+        let mut bytes = std::fs::read(&p).unwrap();
+        let mut h = Header::decode(&bytes);
+        edit(&mut h);
+        bytes[..HEADER].copy_from_slice(&h.encode());
+        h.checksum = checksum(&bytes[..HEADER], &bytes[HEADER..]);
+        bytes[..HEADER].copy_from_slice(&h.encode());
+        open_input(InputBytes::from_vec("t", bytes))
+            .unwrap_err()
+            .to_string()
+    }
+
+    #[test]
+    fn header_claims_beyond_the_file_are_refused() {
+        assert!(tampered(|h| h.n = 1 << 31).contains("outside the file"));
+        assert!(tampered(|h| h.entries = u64::MAX / 2).contains("outside the file"));
+        assert!(tampered(|h| h.intake_len = 1 << 40).contains("outside the file"));
+        assert!(tampered(|h| h.n = u64::MAX).contains("claims"));
+        assert!(tampered(|h| h.id_kind = 7).contains("unknown id kind"));
+        assert!(tampered(|h| h.offsets_at = 131).contains("misaligned"));
+        assert!(tampered(|h| h.n = 2).contains("offsets do not span"));
+    }
+}

@@ -1,0 +1,111 @@
+//! What reading an input found: the cleaning counts a user needs to trust the graph, and how long
+//! each stage took. Stored inside store files so the counts survive packing.
+
+use serde::{Deserialize, Serialize};
+
+use crate::read::source::Compression;
+
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize, Deserialize, schemars::JsonSchema)]
+#[serde(rename_all = "kebab-case")]
+pub enum InputFormat {
+    EdgeList,
+    MatrixMarket,
+}
+
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize, Deserialize, schemars::JsonSchema)]
+#[serde(rename_all = "lowercase")]
+pub enum IdKind {
+    /// Unsigned integers up to 2^64-1.
+    Integer,
+    /// Any other token, kept verbatim.
+    Text,
+}
+
+/// A malformed line that was skipped (with `--skip-malformed`).
+#[derive(Debug, Clone, PartialEq, Eq, Serialize, Deserialize, schemars::JsonSchema)]
+pub struct BadLine {
+    pub line: u64,
+    pub byte: u64,
+    pub problem: String,
+    pub excerpt: String,
+}
+
+/// Wall time of one stage of the build.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize, schemars::JsonSchema)]
+pub struct Stage {
+    pub name: String,
+    pub seconds: f64,
+}
+
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize, schemars::JsonSchema)]
+pub struct Intake {
+    /// The path as given.
+    pub source: String,
+    pub format: InputFormat,
+    pub compression: Compression,
+    /// zstd frames in the input (several frames decode in parallel).
+    pub frames: Option<u64>,
+    /// Bytes on disk.
+    pub input_bytes: u64,
+    /// Bytes of text after decompression.
+    pub text_bytes: u64,
+    pub lines: u64,
+    pub blank_lines: u64,
+    pub comment_lines: u64,
+    /// The header line that was skipped, if any.
+    pub header_line: Option<String>,
+    /// Lines that held an edge, self-loops included.
+    pub edge_lines: u64,
+    /// Edge lines with columns after the two ids (ignored).
+    pub extra_column_lines: u64,
+    /// Edge lines joining a node to itself (dropped).
+    pub self_loops: u64,
+    /// Edge lines repeating an earlier line in the same direction (merged).
+    pub repeated_lines: u64,
+    /// Node pairs listed in both directions (merged into one edge).
+    pub reciprocal_pairs: u64,
+    pub malformed_skipped: u64,
+    /// The first few skipped lines, in file order.
+    pub malformed_examples: Vec<BadLine>,
+    pub nodes: u64,
+    /// Undirected edges kept.
+    pub edges: u64,
+    /// Nodes left without edges (for example ones seen only in self-loops).
+    pub isolated_nodes: u64,
+    pub id_kind: IdKind,
+    pub stages: Vec<Stage>,
+}
+
+impl Intake {
+    /// The report for a graph that was generated in memory rather than read from text.
+    pub fn generated(source: &str, nodes: u64, edges: u64, isolated_nodes: u64) -> Self {
+        Intake {
+            source: source.to_string(),
+            format: InputFormat::EdgeList,
+            compression: Compression::None,
+            frames: None,
+            input_bytes: 0,
+            text_bytes: 0,
+            lines: 0,
+            blank_lines: 0,
+            comment_lines: 0,
+            header_line: None,
+            edge_lines: edges,
+            extra_column_lines: 0,
+            self_loops: 0,
+            repeated_lines: 0,
+            reciprocal_pairs: 0,
+            malformed_skipped: 0,
+            malformed_examples: Vec::new(),
+            nodes,
+            edges,
+            isolated_nodes,
+            id_kind: IdKind::Integer,
+            stages: Vec::new(),
+        }
+    }
+
+    pub fn total_seconds(&self) -> f64 {
+        self.stages.iter().map(|s| s.seconds).sum()
+    }
+}

@@ -1,0 +1,833 @@
+//! Reading an edge file (plain, zstd or gzip; edge list or Matrix Market) into a [`Graph`].
+//!
+//! Plain files are scanned twice straight from the memory map: pass one validates every line and
+//! tallies ids and raw degrees, pass two writes the adjacency. Compressed input is decoded once
+//! (pipelined with parsing) and its integer edges are kept compactly between the passes, so the
+//! decoder, the slowest stage, runs once. Files with text ids take an extra tally pass.
+
+use std::borrow::Cow;
+use std::path::Path;
+use std::sync::atomic::{AtomicBool, AtomicU64, Ordering};
+use std::time::Instant;
+
+use rayon::prelude::*;
+
+use crate::error::{Error, Position, Result};
+use crate::progress::{Progress, Unit};
+use crate::read::edgeline::{self, Line};
+use crate::read::mtx::{self, Header as MtxHeader};
+use crate::read::pieces::{self, Source};
+use crate::read::scan::{self, ChunkOutcome, Counts, LineError, MtxRules, ScanRules};
+use crate::read::source::{self, Compression, InputBytes, Sniffed, StreamFault};
+use crate::store::fill::Filler;
+use crate::store::graph::{Graph, NodeIds};
+use crate::store::ids::{self, IndexFault, IntIndex, IntTally, TextIndex, TextTally};
+use crate::store::intake::{BadLine, IdKind, InputFormat, Intake, Stage};
+
+/// Which grammar to read the input with.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Default)]
+pub enum FormatChoice {
+    /// Matrix Market if the file starts with its banner, else an edge list.
+    #[default]
+    Auto,
+    EdgeList,
+    MatrixMarket,
+}
+
+/// Whether the first data line of an edge list is a column header.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Default)]
+pub enum HeaderChoice {
+    /// Guess (see [`edgeline::looks_like_header`]).
+    #[default]
+    Auto,
+    /// The first data line is a header: skip it.
+    Skip,
+    /// There is no header: the first data line is an edge.
+    None,
+}
+
+#[derive(Debug, Clone)]
+pub struct LoadOptions {
+    pub format: FormatChoice,
+    pub header: HeaderChoice,
+    /// Skip and count malformed lines instead of stopping at the first.
+    pub skip_malformed: bool,
+    /// Longest line accepted, in bytes.
+    pub max_line: usize,
+    /// Size of the pieces handed to workers; 0 chooses from the input size.
+    pub piece_bytes: usize,
+    /// Most distinct nodes accepted (at most [`ids::MAX_NODES`]).
+    pub max_nodes: u64,
+    /// Bytes the build may allocate; a build that would need more stops with a clear error.
+    pub memory_budget: u64,
+}
+
+impl Default for LoadOptions {
+    fn default() -> Self {
+        LoadOptions {
+            format: FormatChoice::Auto,
+            header: HeaderChoice::Auto,
+            skip_malformed: false,
+            max_line: 1 << 20,
+            piece_bytes: 0,
+            max_nodes: ids::MAX_NODES,
+            memory_budget: crate::store::limits::default_memory_budget(),
+        }
+    }
+}
+
+/// Load an edge file or a store file.
+pub fn load(path: &Path, opts: &LoadOptions, progress: &dyn Progress) -> Result<Graph> {
+    load_input(InputBytes::open(path)?, opts, progress)
+}
+
+/// Load from bytes already opened.
+pub fn load_input(input: InputBytes, opts: &LoadOptions, progress: &dyn Progress) -> Result<Graph> {
+    let compression = match source::sniff(input.bytes()) {
+        Sniffed::Store => return crate::store::file::open_input(input),
+        Sniffed::Unsupported(format) => {
+            return Err(Error::Unsupported {
+                path: input.path.clone(),
+                format,
+            });
+        }
+        Sniffed::Text => Compression::None,
+        Sniffed::Compressed(c) => c,
+    };
+    Loader::new(&input, compression, opts, progress)?.run()
+}
+
+/// Memory per node while building: offsets (8), raw degree (4), two cursors (8), id (8).
+const BYTES_PER_NODE: u64 = 28;
+
+fn check_budget(path: &Path, opts: &LoadOptions, what: String, needed: u64) -> Result<()> {
+    if needed > opts.memory_budget {
+        return Err(Error::OverBudget {
+            path: path.to_path_buf(),
+            what,
+            needed_mib: needed.div_ceil(1 << 20),
+            budget_mib: opts.memory_budget >> 20,
+        });
+    }
+    Ok(())
+}
+
+/// Edges parsed before they are written out together.
+const FILL_BATCH: usize = 2048;
+
+/// How much text is looked at up front (banner, header guess).
+const PEEK: usize = 1 << 20;
+
+struct Loader<'a> {
+    input: &'a InputBytes,
+    opts: &'a LoadOptions,
+    progress: &'a dyn Progress,
+    src: Source<'a>,
+    rules: ScanRules,
+    mtx: Option<MtxHeader>,
+    header_line: Option<String>,
+    threads: usize,
+    stages: Vec<Stage>,
+    clock: Instant,
+}
+
+/// What the first pass over the text found.
+struct Scanned {
+    outcomes: Vec<ChunkOutcome>,
+    text_bytes: u64,
+    frames: Option<u64>,
+}
+
+impl<'a> Loader<'a> {
+    fn new(
+        input: &'a InputBytes,
+        compression: Compression,
+        opts: &'a LoadOptions,
+        progress: &'a dyn Progress,
+    ) -> Result<Self> {
+        let data = input.bytes();
+        let path = &input.path;
+        let threads = rayon::current_num_threads();
+        let piece = if opts.piece_bytes > 0 {
+            opts.piece_bytes
+        } else {
+            // Enough pieces to balance the workers, each large enough to amortise hand-off.
+            (data.len() / (threads * 16)).clamp(1 << 20, 16 << 20)
+        };
+        let src = Source {
+            data,
+            compression,
+            piece,
+            max_line: opts.max_line,
+        };
+        let head = peek(src, path)?;
+        if head.is_empty() {
+            return Err(Error::Empty {
+                path: path.clone(),
+                detail: if data.is_empty() {
+                    "the file is empty".into()
+                } else {
+                    "it decompresses to nothing".into()
+                },
+            });
+        }
+        let banner = mtx::has_banner(&head);
+        let use_mtx = match opts.format {
+            FormatChoice::Auto => banner,
+            FormatChoice::EdgeList => false,
+            FormatChoice::MatrixMarket => true,
+        };
+        let mut rules = ScanRules {
+            max_line: opts.max_line,
+            skip_malformed: opts.skip_malformed,
+            body_start: 0,
+            header_at: None,
+            mtx: None,
+            text_ids: false,
+        };
+        let mut header_line = None;
+        let mtx = if use_mtx {
+            let h = mtx::parse_header(&head).map_err(|f| Error::MatrixMarket {
+                path: path.clone(),
+                pos: Position {
+                    line: f.line,
+                    byte: f.byte as u64,
+                    decoded: compression != Compression::None,
+                },
+                problem: f.problem,
+            })?;
+            if h.rows > opts.max_nodes.min(ids::MAX_NODES) {
+                return Err(Error::TooManyNodes {
+                    path: path.clone(),
+                    limit: opts.max_nodes.min(ids::MAX_NODES),
+                });
+            }
+            // Declared nodes all exist, so the claim alone sizes the arrays: check it first.
+            check_budget(
+                path,
+                opts,
+                format!("holding the {} nodes its size line declares", h.rows),
+                (h.rows + 1).saturating_mul(BYTES_PER_NODE),
+            )?;
+            rules.body_start = h.body_start as u64;
+            rules.mtx = Some(MtxRules {
+                n: h.rows,
+                field: h.field,
+            });
+            Some(h)
+        } else {
+            let data_lines = first_data_lines(&head);
+            let first = data_lines.first().copied();
+            let take = match opts.header {
+                HeaderChoice::None => false,
+                HeaderChoice::Skip => true,
+                HeaderChoice::Auto => first.is_some_and(|(_, l)| {
+                    edgeline::looks_like_header(l, data_lines.get(1).map(|x| x.1))
+                }),
+            };
+            if let (true, Some((at, line))) = (take, first) {
+                rules.header_at = Some(at as u64);
+                header_line = Some(crate::error::excerpt(line));
+            }
+            None
+        };
+        Ok(Loader {
+            input,
+            opts,
+            progress,
+            src,
+            rules,
+            mtx,
+            header_line,
+            threads,
+            stages: Vec::new(),
+            clock: Instant::now(),
+        })
+    }
+
+    fn stage_done(&mut self, name: &str) {
+        let now = Instant::now();
+        self.stages.push(Stage {
+            name: name.to_string(),
+            seconds: (now - self.clock).as_secs_f64(),
+        });
+        self.clock = now;
+        self.progress.finish();
+    }
+
+    fn begin(&self, name: &str) {
+        let total = match self.src.compression {
+            Compression::None => Some(self.src.data.len() as u64),
+            _ => None,
+        };
+        self.progress.stage(name, total, Unit::Bytes);
+    }
+
+    fn run(mut self) -> Result<Graph> {
+        // Pass 1: integer ids (the fast path). Compressed input keeps its edges for pass 2.
+        let keep = self.src.compression != Compression::None;
+        // Flat id arrays grow to the largest id seen, up to a cap tied to the input size and the
+        // memory budget; larger ids go to a hash map.
+        let per_worker = self.opts.memory_budget / 4 / (4 * self.threads as u64);
+        let cap = match &self.mtx {
+            Some(h) => h.rows + 1,
+            None => (self.src.data.len() as u64 * if keep { 16 } else { 4 })
+                .min(per_worker)
+                .max(1 << 16),
+        };
+        // Compressed input keeps its edges; a decompression bomb must not exhaust memory.
+        let kept_bytes = AtomicU64::new(0);
+        let over_budget = AtomicBool::new(false);
+        let keep_limit = self.opts.memory_budget / 2;
+        self.begin("scanning");
+        let rules = self.rules.clone();
+        let (states, info) = pieces::run(
+            self.src,
+            self.threads,
+            self.progress,
+            || IntWorker {
+                tally: IntTally::new(cap),
+                outcomes: Vec::new(),
+                kept: Vec::new(),
+            },
+            |w, index, bytes, base| {
+                let go_on = w.scan(index, bytes, base, &rules, keep);
+                if keep {
+                    let added = w.kept.last().map_or(0, |(_, r)| r.bytes());
+                    if kept_bytes.fetch_add(added, Ordering::Relaxed) + added > keep_limit {
+                        over_budget.store(true, Ordering::Relaxed);
+                        return false;
+                    }
+                }
+                go_on
+            },
+        )
+        .map_err(|f| self.stream_fault(f, &[]))?;
+        let mut outcomes = Vec::new();
+        let mut tallies = Vec::new();
+        let mut kept = Vec::new();
+        for w in states {
+            outcomes.extend(w.outcomes);
+            tallies.push(w.tally);
+            kept.extend(w.kept);
+        }
+        let scanned = self.check(outcomes, info)?;
+        self.stage_done("scan");
+        if scanned.outcomes.iter().any(|o| o.stopped) {
+            drop((tallies, kept));
+            // Only edge lists stop: Matrix Market entries are checked as integers before.
+            return self.run_text();
+        }
+
+        self.progress.stage("indexing ids", None, Unit::Items);
+        if over_budget.load(Ordering::Relaxed) {
+            // The kept edges and the adjacency built from them live together: about twice.
+            return Err(self.over_budget(
+                "building from the decompressed edges",
+                2 * kept_bytes.load(Ordering::Relaxed),
+            ));
+        }
+        let index = IntIndex::build(tallies, self.mtx.as_ref().map(|h| h.rows), self.max_nodes())
+            .map_err(|f| self.index_fault(f))?;
+        self.stage_done("index ids");
+
+        self.check_fill_budget(&index.raw_degree)?;
+        let filler = Filler::new(&index.raw_degree);
+        if keep {
+            self.progress.stage("filling", None, Unit::Items);
+            kept.par_iter().for_each(|(_, raw)| {
+                let mut dense = Vec::with_capacity(FILL_BATCH);
+                let mut put = |a: u64, b: u64| {
+                    dense.push((index.get(a), index.get(b)));
+                    if dense.len() == FILL_BATCH {
+                        filler.edges(&dense);
+                        dense.clear();
+                    }
+                };
+                match raw {
+                    Raw::Narrow(v) => v
+                        .chunks_exact(2)
+                        .for_each(|p| put(p[0] as u64, p[1] as u64)),
+                    Raw::Wide(v) => v.chunks_exact(2).for_each(|p| put(p[0], p[1])),
+                }
+                filler.edges(&dense);
+            });
+            drop(kept);
+        } else {
+            self.begin("filling");
+            let rules = &self.rules;
+            pieces::run(
+                self.src,
+                self.threads,
+                self.progress,
+                || (),
+                |_, i, bytes, base| {
+                    // Parse a batch, then map and store it in a tight loop: the random writes
+                    // overlap far better than when interleaved with parsing.
+                    let mut batch: Vec<(u64, u64)> = Vec::with_capacity(FILL_BATCH);
+                    let mut dense: Vec<(u32, u32)> = Vec::with_capacity(FILL_BATCH);
+                    let mut flush = |batch: &mut Vec<(u64, u64)>| {
+                        dense.clear();
+                        dense.extend(batch.iter().map(|&(a, b)| (index.get(a), index.get(b))));
+                        filler.edges(&dense);
+                        batch.clear();
+                    };
+                    scan::scan_chunk(i, bytes, base, rules, |a, b| {
+                        if let (Some(a), Some(b)) = (a.int, b.int)
+                            && a != b
+                        {
+                            batch.push((a, b));
+                            if batch.len() == FILL_BATCH {
+                                flush(&mut batch);
+                            }
+                        }
+                        true
+                    });
+                    flush(&mut batch);
+                    true
+                },
+            )
+            .map_err(|f| self.stream_fault(f, &scanned.outcomes))?;
+        }
+        self.stage_done("fill");
+        let ids = NodeIds::from_ints(index.into_ids());
+        self.finish(filler, ids, IdKind::Integer, scanned)
+    }
+
+    /// Text ids: tally tokens, then fill (each pass re-reads the text).
+    fn run_text(mut self) -> Result<Graph> {
+        self.rules.text_ids = true;
+        self.begin("scanning text ids");
+        let rules = self.rules.clone();
+        let (states, info) = pieces::run(
+            self.src,
+            self.threads,
+            self.progress,
+            || (TextTally::default(), Vec::new()),
+            |(t, outcomes), i, bytes, base| {
+                let o = scan::scan_chunk(i, bytes, base, &rules, |a, b| {
+                    t.edge(a.raw, b.raw);
+                    true
+                });
+                let go_on = o.error.is_none();
+                outcomes.push(o);
+                go_on
+            },
+        )
+        .map_err(|f| self.stream_fault(f, &[]))?;
+        let (tallies, outcomes): (Vec<_>, Vec<_>) = states.into_iter().unzip();
+        let scanned = self.check(outcomes.into_iter().flatten().collect(), info)?;
+        let index = TextIndex::build(tallies, self.max_nodes()).map_err(|f| self.index_fault(f))?;
+        self.stage_done("index ids");
+
+        self.check_fill_budget(&index.raw_degree)?;
+        let filler = Filler::new(&index.raw_degree);
+        self.begin("filling");
+        pieces::run(
+            self.src,
+            self.threads,
+            self.progress,
+            || (),
+            |_, i, bytes, base| {
+                scan::scan_chunk(i, bytes, base, &rules, |a, b| {
+                    if a.raw != b.raw {
+                        filler.edge(index.get(a.raw), index.get(b.raw));
+                    }
+                    true
+                });
+                true
+            },
+        )
+        .map_err(|f| self.stream_fault(f, &scanned.outcomes))?;
+        self.stage_done("fill");
+        let ids = NodeIds::Text {
+            offsets: index.offsets.into(),
+            bytes: index.bytes.into(),
+        };
+        self.finish(filler, ids, IdKind::Text, scanned)
+    }
+
+    fn finish(
+        mut self,
+        filler: Filler,
+        ids: NodeIds,
+        id_kind: IdKind,
+        scanned: Scanned,
+    ) -> Result<Graph> {
+        self.progress.stage("sorting lists", None, Unit::Items);
+        let filled = filler.finish().map_err(|problem| Error::Output {
+            path: self.input.path.clone(),
+            problem,
+        })?;
+        self.stage_done("sort and merge");
+        let mut total = Counts::default();
+        let mut examples = Vec::new();
+        let mut header_skipped = false;
+        let mut line_base = self.mtx.as_ref().map_or(0, |h| h.lines_before_body);
+        for o in &scanned.outcomes {
+            total.add(&o.counts);
+            header_skipped |= o.header_skipped;
+            for f in &o.skipped {
+                if examples.len() < scan::EXAMPLES {
+                    examples.push(BadLine {
+                        line: line_base + f.line + 1,
+                        byte: o.byte_base + f.offset as u64,
+                        problem: describe(&f.error),
+                        excerpt: f.excerpt.clone(),
+                    });
+                }
+            }
+            line_base += o.counts.lines;
+        }
+        let csr = crate::store::csr::Csr::from_parts(filled.offsets.into(), filled.targets.into());
+        let n = csr.node_count() as u64;
+        let m = csr.edge_count();
+        let loopless = total.edge_lines - total.loops;
+        let isolated = {
+            let o = csr.offsets();
+            (0..csr.node_count())
+                .into_par_iter()
+                .filter(|&u| o[u] == o[u + 1])
+                .count() as u64
+        };
+        if n == 0 {
+            return Err(Error::Empty {
+                path: self.input.path.clone(),
+                detail: format!(
+                    "{}: {}, {}, {}",
+                    plural(total.lines, "line", "lines"),
+                    plural(total.comments, "comment", "comments"),
+                    plural(total.blank, "blank line", "blank lines"),
+                    plural(
+                        total.malformed,
+                        "malformed line skipped",
+                        "malformed lines skipped"
+                    ),
+                ),
+            });
+        }
+        let (lines, comments) = match &self.mtx {
+            Some(h) => (
+                total.lines + h.lines_before_body,
+                total.comments + h.comment_lines + 1,
+            ),
+            None => (total.lines, total.comments),
+        };
+        let intake = Intake {
+            source: self.input.path.display().to_string(),
+            format: if self.mtx.is_some() {
+                InputFormat::MatrixMarket
+            } else {
+                InputFormat::EdgeList
+            },
+            compression: self.src.compression,
+            frames: scanned.frames,
+            input_bytes: self.src.data.len() as u64,
+            text_bytes: scanned.text_bytes,
+            lines,
+            blank_lines: total.blank,
+            comment_lines: comments,
+            header_line: if header_skipped {
+                self.header_line.take()
+            } else {
+                None
+            },
+            edge_lines: total.edge_lines,
+            extra_column_lines: total.extra,
+            self_loops: total.loops,
+            repeated_lines: loopless - filled.directed_pairs,
+            reciprocal_pairs: filled.directed_pairs - m,
+            malformed_skipped: total.malformed,
+            malformed_examples: examples,
+            nodes: n,
+            edges: m,
+            isolated_nodes: isolated,
+            id_kind,
+            stages: std::mem::take(&mut self.stages),
+        };
+        Ok(Graph { csr, ids, intake })
+    }
+
+    /// Order outcomes, turn the first error into a positioned message, check Matrix Market
+    /// entry counts.
+    fn check(&self, mut outcomes: Vec<ChunkOutcome>, info: source::DecodeInfo) -> Result<Scanned> {
+        outcomes.sort_by_key(|o| o.index);
+        let mut line_base = self.mtx.as_ref().map_or(0, |h| h.lines_before_body);
+        for (expected, o) in outcomes.iter().enumerate() {
+            // Pieces after a stop may be missing or have run anyway; only an unbroken run of
+            // pieces from the start places an error correctly, and a text-id stop hands over
+            // to the text pass, which finds any later error again.
+            if o.index != expected {
+                break;
+            }
+            if let Some(f) = &o.error {
+                return Err(self.positioned(
+                    &f.error,
+                    line_base + f.line + 1,
+                    o.byte_base + f.offset as u64,
+                    &f.excerpt,
+                ));
+            }
+            if o.stopped {
+                break;
+            }
+            line_base += o.counts.lines;
+        }
+        if let Some(h) = &self.mtx {
+            let found: u64 = outcomes.iter().map(|o| o.counts.edge_lines).sum();
+            let malformed: u64 = outcomes.iter().map(|o| o.counts.malformed).sum();
+            if found + malformed != h.entries {
+                return Err(Error::MatrixMarket {
+                    path: self.input.path.clone(),
+                    pos: Position {
+                        line: h.size_line.0,
+                        byte: h.size_line.1 as u64,
+                        decoded: self.src.compression != Compression::None,
+                    },
+                    problem: format!(
+                        "the size line promises {} entries but the file holds {}{}",
+                        h.entries,
+                        found + malformed,
+                        if found + malformed < h.entries {
+                            " (truncated?)"
+                        } else {
+                            ""
+                        }
+                    ),
+                });
+            }
+        }
+        Ok(Scanned {
+            outcomes,
+            text_bytes: info.text_bytes,
+            frames: (self.src.compression == Compression::Zstd).then_some(info.frames),
+        })
+    }
+
+    fn positioned(&self, e: &LineError, line: u64, byte: u64, excerpt: &str) -> Error {
+        let path = self.input.path.clone();
+        let pos = Position {
+            line,
+            byte,
+            decoded: self.src.compression != Compression::None,
+        };
+        match e {
+            LineError::Malformed { problem, expected } => Error::Malformed {
+                path,
+                pos,
+                problem: problem.clone(),
+                expected,
+                excerpt: excerpt.to_string(),
+            },
+            LineError::TooLong => Error::LineTooLong {
+                path,
+                pos,
+                limit: self.opts.max_line,
+            },
+            LineError::Mtx(problem) => Error::MatrixMarket {
+                path,
+                pos,
+                problem: format!("{problem} (line starts: {excerpt:?})"),
+            },
+        }
+    }
+
+    fn stream_fault(&self, f: StreamFault, outcomes: &[ChunkOutcome]) -> Error {
+        match f {
+            StreamFault::Codec { problem, offset } => Error::Compressed {
+                path: self.input.path.clone(),
+                format: match self.src.compression {
+                    Compression::Gzip => "gzip",
+                    _ => "zstd",
+                },
+                problem,
+                offset,
+            },
+            StreamFault::LongLine { index, byte_base } => {
+                let line = outcomes
+                    .iter()
+                    .filter(|o| o.index < index)
+                    .map(|o| o.counts.lines)
+                    .sum::<u64>()
+                    + 1;
+                self.positioned(&LineError::TooLong, line, byte_base, "")
+            }
+        }
+    }
+
+    fn max_nodes(&self) -> u64 {
+        self.opts.max_nodes.min(ids::MAX_NODES)
+    }
+
+    fn over_budget(&self, what: &str, needed: u64) -> Error {
+        Error::OverBudget {
+            path: self.input.path.clone(),
+            what: what.to_string(),
+            needed_mib: needed.div_ceil(1 << 20),
+            budget_mib: self.opts.memory_budget >> 20,
+        }
+    }
+
+    /// The adjacency under construction: raw entries plus per-node offsets and cursors.
+    fn check_fill_budget(&self, raw_degree: &[u32]) -> Result<()> {
+        let entries: u64 = raw_degree.par_iter().map(|&d| d as u64).sum();
+        let needed = entries
+            .saturating_mul(4)
+            .saturating_add((raw_degree.len() as u64 + 1).saturating_mul(BYTES_PER_NODE));
+        check_budget(
+            &self.input.path,
+            self.opts,
+            format!(
+                "building the adjacency of {} nodes and {} edge entries",
+                raw_degree.len(),
+                entries
+            ),
+            needed,
+        )
+    }
+
+    fn index_fault(&self, f: IndexFault) -> Error {
+        match f {
+            IndexFault::TooManyNodes => Error::TooManyNodes {
+                path: self.input.path.clone(),
+                limit: self.max_nodes(),
+            },
+            IndexFault::DegreeOverflow(node) => Error::DegreeTooLarge {
+                path: self.input.path.clone(),
+                node,
+                limit: u32::MAX as u64 - 1,
+            },
+        }
+    }
+}
+
+fn plural(n: u64, one: &str, many: &str) -> String {
+    if n == 1 {
+        format!("1 {one}")
+    } else {
+        format!("{n} {many}")
+    }
+}
+
+fn describe(e: &LineError) -> String {
+    match e {
+        LineError::Malformed { problem, .. } => problem.clone(),
+        LineError::TooLong => "line too long".into(),
+        LineError::Mtx(p) => p.clone(),
+    }
+}
+
+/// Integer edges kept between passes for compressed input (pairs, flattened).
+enum Raw {
+    Narrow(Vec<u32>),
+    Wide(Vec<u64>),
+}
+
+impl Raw {
+    fn bytes(&self) -> u64 {
+        match self {
+            Raw::Narrow(v) => v.len() as u64 * 4,
+            Raw::Wide(v) => v.len() as u64 * 8,
+        }
+    }
+
+    #[inline]
+    fn push(&mut self, a: u64, b: u64) {
+        match self {
+            Raw::Narrow(v) if (a | b) <= u32::MAX as u64 => {
+                v.push(a as u32);
+                v.push(b as u32);
+            }
+            Raw::Narrow(v) => {
+                let mut w: Vec<u64> = v.iter().map(|&x| x as u64).collect();
+                w.push(a);
+                w.push(b);
+                *self = Raw::Wide(w);
+            }
+            Raw::Wide(v) => {
+                v.push(a);
+                v.push(b);
+            }
+        }
+    }
+}
+
+struct IntWorker {
+    tally: IntTally,
+    outcomes: Vec<ChunkOutcome>,
+    kept: Vec<(usize, Raw)>,
+}
+
+impl IntWorker {
+    fn scan(
+        &mut self,
+        index: usize,
+        bytes: &[u8],
+        base: u64,
+        rules: &ScanRules,
+        keep: bool,
+    ) -> bool {
+        let mut raw = Raw::Narrow(Vec::new());
+        let tally = &mut self.tally;
+        let outcome = scan::scan_chunk(index, bytes, base, rules, |a, b| match (a.int, b.int) {
+            (Some(a), Some(b)) => {
+                tally.edge(a, b);
+                if keep && a != b {
+                    raw.push(a, b);
+                }
+                true
+            }
+            _ => false,
+        });
+        let go_on = outcome.error.is_none() && !outcome.stopped;
+        self.outcomes.push(outcome);
+        if keep {
+            if let Raw::Narrow(v) = &mut raw {
+                v.shrink_to_fit();
+            }
+            self.kept.push((index, raw));
+        }
+        go_on
+    }
+}
+
+/// The first `PEEK` bytes of text (decoding if needed).
+fn peek<'a>(src: Source<'a>, path: &Path) -> Result<Cow<'a, [u8]>> {
+    if src.compression == Compression::None {
+        return Ok(Cow::Borrowed(&src.data[..src.data.len().min(PEEK)]));
+    }
+    let mut head = Vec::new();
+    let r = source::decode_chunks(src.data, src.compression, PEEK, usize::MAX, &mut |c| {
+        head.extend_from_slice(&c.bytes);
+        head.len() < PEEK
+    });
+    match r {
+        Ok(_) => Ok(Cow::Owned(head)),
+        Err(StreamFault::Codec { problem, offset }) => Err(Error::Compressed {
+            path: path.to_path_buf(),
+            format: if src.compression == Compression::Gzip {
+                "gzip"
+            } else {
+                "zstd"
+            },
+            problem,
+            offset,
+        }),
+        Err(StreamFault::LongLine { .. }) => Ok(Cow::Owned(head)),
+    }
+}
+
+/// Up to two data lines (not blank, not comment) from the start of the text, with offsets.
+fn first_data_lines(head: &[u8]) -> Vec<(usize, &[u8])> {
+    let mut out = Vec::new();
+    let mut pos = 0;
+    while pos < head.len() && out.len() < 2 {
+        let end = memchr::memchr(b'\n', &head[pos..]).map_or(head.len(), |i| pos + i);
+        let line = &head[pos..end];
+        if !matches!(edgeline::parse_line(line), Ok(Line::Blank | Line::Comment)) {
+            out.push((pos, line));
+        }
+        pos = end + 1;
+    }
+    out
+}

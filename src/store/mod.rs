@@ -1,0 +1,14 @@
+//! Building and the store: from parsed lines to the graph. Owns the id tables (integer and text ids, ranked so
+//! results never depend on threads), the CSR fill, the [`graph::Graph`] with its intake facts,
+//! the versioned store file (`file`), and the resource limits. Uses `read` below it.
+
+pub mod csr;
+pub mod file;
+pub mod fill;
+pub mod graph;
+pub mod ids;
+pub mod intake;
+pub mod limits;
+pub mod load;
+pub mod reference;
+pub mod slab;
