@@ -113,6 +113,10 @@ pub enum Error {
     #[error("{path}: {problem}")]
     Output { path: PathBuf, problem: String },
 
+    /// A file that should hold a profile report does not.
+    #[error("{path}: not a plumb profile report: {problem}")]
+    Report { path: PathBuf, problem: String },
+
     #[error("{problem}")]
     Parameters { problem: String },
 }
@@ -141,6 +145,35 @@ impl Error {
 }
 
 pub type Result<T, E = Error> = std::result::Result<T, E>;
+
+/// A parameter outside what its model or option allows: the problem in words, naming the
+/// parameter and the value given. Reported as a usage error (exit 2) by the command line.
+#[derive(Debug, Clone, PartialEq, Eq, thiserror::Error)]
+#[error("{problem}")]
+pub struct ParamError {
+    /// What is wrong, e.g. "the probability p must lie in [0, 1] (got 1.5)".
+    pub problem: String,
+}
+
+impl From<String> for ParamError {
+    fn from(problem: String) -> Self {
+        ParamError { problem }
+    }
+}
+
+impl From<&str> for ParamError {
+    fn from(problem: &str) -> Self {
+        ParamError {
+            problem: problem.to_string(),
+        }
+    }
+}
+
+impl From<ParamError> for Error {
+    fn from(e: ParamError) -> Self {
+        Error::Parameters { problem: e.problem }
+    }
+}
 
 /// Shorten a line for an error message without splitting a UTF-8 character.
 pub(crate) fn excerpt(line: &[u8]) -> String {

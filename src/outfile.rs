@@ -244,6 +244,25 @@ impl SmallDigits {
     }
 }
 
+/// Refuse an output path that names the input file: plumb never modifies its inputs. `-`
+/// (standard input or output) never names a file.
+pub fn refuse_overwrite(out: &Path, input: &Path) -> Result<()> {
+    if out.as_os_str() == "-" || input.as_os_str() == "-" {
+        return Ok(());
+    }
+    if let (Ok(a), Ok(b)) = (out.canonicalize(), input.canonicalize())
+        && a == b
+    {
+        return Err(Error::Parameters {
+            problem: format!(
+                "{} is the input; plumb never writes over its input (choose another output file)",
+                out.display()
+            ),
+        });
+    }
+    Ok(())
+}
+
 #[cfg(test)]
 mod tests {
     use super::*;

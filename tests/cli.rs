@@ -222,7 +222,15 @@ fn planner_choices_reach_the_report() {
 #[test]
 fn sweep_and_synth_as_a_user_runs_them() {
     let out = plumb(&[
-        "sweep", "--nodes", "500", "--degree", "6", "--p", "0,0.1,1", "--graphs", "2",
+        "sweep",
+        "--nodes",
+        "500",
+        "--degree",
+        "6",
+        "--probabilities",
+        "0,0.1,1",
+        "--graphs",
+        "2",
     ]);
     assert!(
         out.status.success(),
@@ -246,7 +254,7 @@ fn sweep_and_synth_as_a_user_runs_them() {
         assert!(String::from_utf8_lossy(&out.stderr).contains("never writes over its input"));
     }
     assert_eq!(std::fs::read("tests/data/lesmis.csv").unwrap(), before);
-    let out = plumb(&["sweep", "--p", "2"]);
+    let out = plumb(&["sweep", "--probabilities", "2"]);
     assert_eq!(
         out.status.code(),
         Some(2),

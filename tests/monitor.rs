@@ -9,7 +9,7 @@ use common::graph_of;
 
 use plumb::Graph;
 use plumb::models::generate;
-use plumb::monitor::drift::{Threshold, compare};
+use plumb::monitor::drift::{FigureKey, Threshold, compare};
 use plumb::profile::plan::Choice;
 use plumb::profile::report::Report;
 use plumb::profile::{Groups, ProfileOptions, profile};
@@ -33,10 +33,10 @@ fn estimated(g: &Graph, seed: u64, groups: Groups, margin: f64) -> Report {
 }
 
 /// Thresholds of zero: every significant difference alerts, so the test sees the bare z tests.
-fn zero_thresholds() -> Vec<(String, Threshold)> {
-    plumb::monitor::drift::FIGURES
+fn zero_thresholds() -> Vec<(FigureKey, Threshold)> {
+    FigureKey::ALL
         .iter()
-        .map(|(k, _, _)| (k.to_string(), Threshold::Absolute(0.0)))
+        .map(|&k| (k, Threshold::Absolute(0.0)))
         .collect()
 }
 
@@ -85,7 +85,11 @@ fn a_planted_fall_in_transitivity_alerts_every_time() {
         let a = estimated(&before, seed, groups, 0.002);
         let b = estimated(&after, seed + 1000, groups, 0.002);
         let d = compare(&a, &b, ("before", "after"), 0.99, &[]);
-        let t = d.changes.iter().find(|c| c.key == "transitivity").unwrap();
+        let t = d
+            .changes
+            .iter()
+            .find(|c| c.key == FigureKey::Transitivity)
+            .unwrap();
         println!(
             "planted change, seed {seed}: transitivity {:.4} -> {:.4}, alert {}",
             t.before, t.after, t.alert

@@ -238,7 +238,14 @@ fn synth_files_are_byte_identical_for_a_seed() {
         let path = dir.path().join(name);
         let out = std::process::Command::new(env!("CARGO_BIN_EXE_plumb"))
             .args([
-                "synth", "ws", "--nodes", "5000", "--degree", "6", "--rewire", "0.1",
+                "synth",
+                "rewired-lattice",
+                "--nodes",
+                "5000",
+                "--degree",
+                "6",
+                "--rewire",
+                "0.1",
             ])
             .args(["--seed", seed, "-o"])
             .arg(&path)

@@ -5,6 +5,7 @@
 //! stream. Every generator gives the same edges in the same order for the same arguments and seed
 //! on any machine and thread count (ChaCha8, sequential draws).
 
+use crate::error::ParamError;
 use rand::{RngExt, SeedableRng};
 use rand_chacha::ChaCha8Rng;
 use rustc_hash::FxHashSet;
@@ -31,27 +32,29 @@ pub enum Model {
 
 impl Model {
     /// Check the parameters; the message says what is wrong.
-    pub fn validate(&self) -> Result<(), String> {
+    pub fn validate(&self) -> Result<(), ParamError> {
         let pairs = |n: u32| n as u64 * (n as u64).saturating_sub(1) / 2;
         match *self {
             Model::Lattice { n, k } | Model::WattsStrogatz { n, k, .. } if k % 2 == 1 || k >= n => {
-                Err(format!(
+                Err(ParamError::from(format!(
                     "a ring lattice needs an even degree k below n (k = {k}, n = {n})"
-                ))
+                )))
             }
             Model::Lattice { k: 0, .. } | Model::WattsStrogatz { k: 0, .. } => {
                 Err("a ring lattice needs a degree k of at least 2".into())
             }
             Model::WattsStrogatz { p, .. } | Model::Gnp { p, .. } if !(0.0..=1.0).contains(&p) => {
-                Err(format!("the probability p must lie in [0, 1] (got {p})"))
+                Err(ParamError::from(format!(
+                    "the probability p must lie in [0, 1] (got {p})"
+                )))
             }
-            Model::Gnm { n, m } if m > pairs(n) => Err(format!(
+            Model::Gnm { n, m } if m > pairs(n) => Err(ParamError::from(format!(
                 "G(n, m) with n = {n} has at most {} edges (asked for {m})",
                 pairs(n)
-            )),
-            Model::Preferential { n, d } if d == 0 || d >= n => Err(format!(
+            ))),
+            Model::Preferential { n, d } if d == 0 || d >= n => Err(ParamError::from(format!(
                 "preferential attachment needs 1 <= d < n (d = {d}, n = {n})"
-            )),
+            ))),
             _ if self.nodes() < 2 => Err("a model graph needs at least 2 nodes".into()),
             _ => Ok(()),
         }
@@ -88,7 +91,7 @@ impl Model {
 }
 
 /// Stream the edges of `model` (validated first) to `emit`, in a fixed order for `seed`.
-pub fn stream(model: &Model, seed: u64, emit: &mut dyn FnMut(u32, u32)) -> Result<(), String> {
+pub fn stream(model: &Model, seed: u64, emit: &mut dyn FnMut(u32, u32)) -> Result<(), ParamError> {
     model.validate()?;
     let mut rng = ChaCha8Rng::seed_from_u64(seed);
     match *model {
@@ -108,7 +111,7 @@ pub fn stream(model: &Model, seed: u64, emit: &mut dyn FnMut(u32, u32)) -> Resul
 }
 
 /// Build the model's graph in memory.
-pub fn build(model: &Model, seed: u64) -> Result<Csr, String> {
+pub fn build(model: &Model, seed: u64) -> Result<Csr, ParamError> {
     let mut pairs = Vec::new();
     stream(model, seed, &mut |a, b| pairs.push((a, b)))?;
     Ok(csr_from_pairs(model.nodes() as usize, &pairs))

@@ -9,3 +9,4 @@ pub mod measure;
 pub mod randomize;
 pub mod smallworld;
 pub mod sweep;
+pub mod synth;

@@ -4,6 +4,7 @@
 //! Reed 1995; as analysed by Newman, "The structure and function of complex networks", SIAM
 //! Review 45, 2003), with self-loops and repeated pairs erased and counted.
 
+use crate::error::ParamError;
 use rand::{RngExt, SeedableRng};
 use rand_chacha::ChaCha8Rng;
 use rustc_hash::FxHashSet;
@@ -103,10 +104,12 @@ pub fn configuration(
     degrees: &[u32],
     seed: u64,
     emit: &mut dyn FnMut(u32, u32),
-) -> Result<ConfigurationReport, String> {
+) -> Result<ConfigurationReport, ParamError> {
     let total: u64 = degrees.iter().map(|&d| d as u64).sum();
     if total % 2 == 1 {
-        return Err(format!("the degree sum must be even (it is {total})"));
+        return Err(ParamError::from(format!(
+            "the degree sum must be even (it is {total})"
+        )));
     }
     let mut stubs: Vec<u32> = Vec::with_capacity(total as usize);
     for (v, &d) in degrees.iter().enumerate() {

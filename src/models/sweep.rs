@@ -2,6 +2,7 @@
 //! probabilities, with C(p)/C(0) and L(p)/L(0) — the two curves of Watts & Strogatz (1998,
 //! Fig. 2) — measured on seeded graphs, C(0) and L(0) exact from the ring lattice's closed forms.
 
+use crate::error::ParamError;
 use serde::{Deserialize, Serialize};
 
 use crate::estimate::interval::t_for;
@@ -77,7 +78,7 @@ pub fn watts_strogatz(
     opts: &Measure,
     seed: u64,
     row_done: &mut dyn FnMut(&SweepRow),
-) -> Result<Sweep, String> {
+) -> Result<Sweep, ParamError> {
     if graphs == 0 {
         return Err("a sweep needs at least one graph per p".into());
     }

@@ -6,6 +6,7 @@
 //! least the user's minimum effect for that figure. Exact figures have no sampling error: any
 //! difference is real, and the minimum effect alone decides.
 
+use crate::error::ParamError;
 use serde::{Deserialize, Serialize};
 
 use crate::estimate::interval::z_for;
@@ -30,74 +31,166 @@ impl Threshold {
     }
 }
 
-/// The figures compared, their keys for thresholds, and the default minimum effects. The
-/// defaults are this project's own choice (common practice, no published source): large enough
-/// that ordinary week-to-week growth of a live network does not page anyone.
-pub const FIGURES: &[(&str, &str, Threshold)] = &[
-    ("nodes", "nodes", Threshold::Relative(0.10)),
-    ("edges", "edges", Threshold::Relative(0.10)),
-    ("mean-degree", "mean degree", Threshold::Relative(0.10)),
-    // A few small components come and go every week; the giant component's share is the
-    // figure that catches a real split.
-    ("components", "components", Threshold::Absolute(100.0)),
-    (
-        "giant-share",
-        "share of nodes in the giant component",
-        Threshold::Absolute(0.02),
-    ),
-    ("transitivity", "transitivity", Threshold::Absolute(0.01)),
-    (
-        "average-clustering",
-        "average local clustering (degree < 2 as 0)",
-        Threshold::Absolute(0.01),
-    ),
-    ("mean-distance", "mean distance", Threshold::Relative(0.02)),
-    (
-        "effective-diameter",
-        "effective diameter (90%)",
-        Threshold::Relative(0.05),
-    ),
-];
+/// The figures a comparison looks at. Their kebab-case names are the keys of `--alert-on` and of
+/// the comparison JSON.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Hash, Serialize, Deserialize, schemars::JsonSchema)]
+#[serde(rename_all = "kebab-case")]
+pub enum FigureKey {
+    /// Node count.
+    Nodes,
+    /// Edge count.
+    Edges,
+    /// Mean degree 2m/n.
+    MeanDegree,
+    /// Number of connected components.
+    Components,
+    /// Share of nodes in the giant component.
+    GiantShare,
+    /// Transitivity 3 triangles / wedges.
+    Transitivity,
+    /// Average local clustering, degree < 2 counted as 0.
+    AverageClustering,
+    /// Mean distance on the distance node set.
+    MeanDistance,
+    /// Effective diameter at 90%.
+    EffectiveDiameter,
+}
+
+impl FigureKey {
+    /// Every key, in report order.
+    pub const ALL: [FigureKey; 9] = [
+        FigureKey::Nodes,
+        FigureKey::Edges,
+        FigureKey::MeanDegree,
+        FigureKey::Components,
+        FigureKey::GiantShare,
+        FigureKey::Transitivity,
+        FigureKey::AverageClustering,
+        FigureKey::MeanDistance,
+        FigureKey::EffectiveDiameter,
+    ];
+
+    /// The key as written on the command line and in JSON.
+    pub fn key(self) -> &'static str {
+        match self {
+            FigureKey::Nodes => "nodes",
+            FigureKey::Edges => "edges",
+            FigureKey::MeanDegree => "mean-degree",
+            FigureKey::Components => "components",
+            FigureKey::GiantShare => "giant-share",
+            FigureKey::Transitivity => "transitivity",
+            FigureKey::AverageClustering => "average-clustering",
+            FigureKey::MeanDistance => "mean-distance",
+            FigureKey::EffectiveDiameter => "effective-diameter",
+        }
+    }
+
+    /// The figure's name in reports.
+    pub fn label(self) -> &'static str {
+        match self {
+            FigureKey::Nodes => "nodes",
+            FigureKey::Edges => "edges",
+            FigureKey::MeanDegree => "mean degree",
+            FigureKey::Components => "components",
+            FigureKey::GiantShare => "share of nodes in the giant component",
+            FigureKey::Transitivity => "transitivity",
+            FigureKey::AverageClustering => "average local clustering (degree < 2 as 0)",
+            FigureKey::MeanDistance => "mean distance",
+            FigureKey::EffectiveDiameter => "effective diameter (90%)",
+        }
+    }
+
+    /// The default minimum effect. These are this project's own choice (common practice, no
+    /// published source): large enough that ordinary week-to-week growth of a live network does
+    /// not page anyone.
+    pub fn default_threshold(self) -> Threshold {
+        match self {
+            FigureKey::Nodes | FigureKey::Edges | FigureKey::MeanDegree => {
+                Threshold::Relative(0.10)
+            }
+            // A few small components come and go every week; the giant component's share is
+            // the figure that catches a real split.
+            FigureKey::Components => Threshold::Absolute(100.0),
+            FigureKey::GiantShare => Threshold::Absolute(0.02),
+            FigureKey::Transitivity | FigureKey::AverageClustering => Threshold::Absolute(0.01),
+            FigureKey::MeanDistance => Threshold::Relative(0.02),
+            FigureKey::EffectiveDiameter => Threshold::Relative(0.05),
+        }
+    }
+}
+
+impl std::fmt::Display for FigureKey {
+    fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
+        f.write_str(self.key())
+    }
+}
+
+impl std::str::FromStr for FigureKey {
+    type Err = ParamError;
+    fn from_str(s: &str) -> Result<Self, ParamError> {
+        FigureKey::ALL
+            .into_iter()
+            .find(|k| k.key() == s)
+            .ok_or_else(|| {
+                let keys: Vec<&str> = FigureKey::ALL.iter().map(|k| k.key()).collect();
+                ParamError::from(format!("unknown figure {s:?}; one of: {}", keys.join(", ")))
+            })
+    }
+}
 
 /// The figures of a report by key.
-pub fn figures_of(r: &Report) -> Vec<(&'static str, Figure)> {
+pub fn figures_of(r: &Report) -> Vec<(FigureKey, Figure)> {
     let p = &r.profile;
     let d = &p.degrees;
     let mut out = vec![
-        ("nodes", Figure::exact(d.nodes as f64, "count")),
-        ("edges", Figure::exact(d.edges as f64, "count")),
-        ("mean-degree", Figure::exact(d.mean, "2m/n")),
+        (FigureKey::Nodes, Figure::exact(d.nodes as f64, "count")),
+        (FigureKey::Edges, Figure::exact(d.edges as f64, "count")),
+        (FigureKey::MeanDegree, Figure::exact(d.mean, "2m/n")),
         (
-            "components",
+            FigureKey::Components,
             Figure::exact(p.components.count as f64, "union-find"),
         ),
         (
-            "giant-share",
+            FigureKey::GiantShare,
             Figure::exact(p.components.giant_fraction, "union-find"),
         ),
     ];
     if let Some(c) = &p.clustering {
-        out.push(("transitivity", c.transitivity.clone()));
-        out.push(("average-clustering", c.average_zeros.clone()));
+        out.push((FigureKey::Transitivity, c.transitivity.clone()));
+        out.push((FigureKey::AverageClustering, c.average_zeros.clone()));
     }
-    match &p.distances {
-        Distances::Exact(s) => {
-            out.push(("mean-distance", s.mean.clone()));
-            out.push(("effective-diameter", s.effective_diameter.clone()));
-        }
-        Distances::Estimated(e) => {
-            out.push(("mean-distance", e.mean.clone()));
-            out.push(("effective-diameter", e.effective_diameter.clone()));
-        }
-        _ => {}
+    let distance = match &p.distances {
+        Distances::Exact(s) => Some((&s.mean, &s.effective_diameter)),
+        Distances::Estimated(e) => Some((&e.mean, &e.effective_diameter)),
+        _ => None,
+    };
+    if let Some((mean, effective)) = distance {
+        out.push((FigureKey::MeanDistance, mean.clone()));
+        out.push((FigureKey::EffectiveDiameter, effective.clone()));
     }
     out
+}
+
+/// What one figure's change means.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize, Deserialize, schemars::JsonSchema)]
+#[serde(rename_all = "kebab-case")]
+pub enum Verdict {
+    /// No difference at all.
+    Same,
+    /// A difference smaller than the figure's minimum effect (significant or not).
+    WithinThreshold,
+    /// At least the minimum effect, but within the estimates' sampling error.
+    BeyondThresholdNotSignificant,
+    /// Significant and at least the minimum effect.
+    Alert,
 }
 
 /// One figure's change.
 #[derive(Debug, Clone, PartialEq, Serialize, Deserialize, schemars::JsonSchema)]
 pub struct Change {
-    pub key: String,
+    /// Which figure.
+    pub key: FigureKey,
+    /// The figure's name in reports.
     pub label: String,
     pub before: f64,
     pub after: f64,
@@ -108,6 +201,8 @@ pub struct Change {
     pub threshold: Threshold,
     /// Significant and at least the threshold.
     pub alert: bool,
+    /// What the change means, in one word.
+    pub verdict: Verdict,
 }
 
 #[derive(Debug, Clone, PartialEq, Serialize, Deserialize, schemars::JsonSchema)]
@@ -130,11 +225,11 @@ pub fn compare(
     b: &Report,
     names: (&str, &str),
     level: f64,
-    thresholds: &[(String, Threshold)],
+    thresholds: &[(FigureKey, Threshold)],
 ) -> Drift {
     let fa = figures_of(a);
     let fb = figures_of(b);
-    let pairs: Vec<(&str, &Figure, &Figure)> = fa
+    let pairs: Vec<(FigureKey, &Figure, &Figure)> = fa
         .iter()
         .filter_map(|(k, x)| fb.iter().find(|(j, _)| j == k).map(|(_, y)| (*k, x, y)))
         .collect();
@@ -148,15 +243,10 @@ pub fn compare(
     let z = z_for(each);
     let mut changes = Vec::new();
     for (key, x, y) in pairs {
-        let (label, default) = FIGURES
-            .iter()
-            .find(|(k, _, _)| *k == key)
-            .map(|(_, l, t)| (*l, *t))
-            .expect("every compared figure has a default");
         let threshold = thresholds
             .iter()
-            .find(|(k, _)| k == key)
-            .map_or(default, |(_, t)| *t);
+            .find(|(k, _)| *k == key)
+            .map_or(key.default_threshold(), |(_, t)| *t);
         let diff = y.value - x.value;
         let s = (se(x).powi(2) + se(y).powi(2)).sqrt();
         let significant = if s > 0.0 {
@@ -179,16 +269,24 @@ pub fn compare(
         } else {
             Figure::exact(diff, "difference of exact figures")
         };
-        let alert = significant && threshold.met(x.value, diff);
+        let beyond = threshold.met(x.value, diff);
+        let alert = significant && beyond;
+        let verdict = match (diff == 0.0, beyond, significant) {
+            (true, _, _) => Verdict::Same,
+            (false, false, _) => Verdict::WithinThreshold,
+            (false, true, false) => Verdict::BeyondThresholdNotSignificant,
+            (false, true, true) => Verdict::Alert,
+        };
         changes.push(Change {
-            key: key.into(),
-            label: label.into(),
+            key,
+            label: key.label().into(),
             before: x.value,
             after: y.value,
             difference,
             significant,
             threshold,
             alert,
+            verdict,
         });
     }
     let alerts = changes.iter().filter(|c| c.alert).count();
@@ -204,14 +302,11 @@ pub fn compare(
 
 /// Parse `key=value` thresholds: `transitivity=0.01` (absolute) or `mean-distance=2%`
 /// (relative).
-pub fn parse_threshold(s: &str) -> Result<(String, Threshold), String> {
+pub fn parse_threshold(s: &str) -> Result<(FigureKey, Threshold), ParamError> {
     let (k, v) = s
         .split_once('=')
         .ok_or_else(|| format!("expected FIGURE=VALUE such as transitivity=0.01, got {s:?}"))?;
-    if !FIGURES.iter().any(|(key, _, _)| *key == k) {
-        let keys: Vec<&str> = FIGURES.iter().map(|f| f.0).collect();
-        return Err(format!("unknown figure {k:?}; one of: {}", keys.join(", ")));
-    }
+    let k: FigureKey = k.parse()?;
     let t = match v.strip_suffix('%') {
         Some(p) => p
             .parse::<f64>()
@@ -222,7 +317,7 @@ pub fn parse_threshold(s: &str) -> Result<(String, Threshold), String> {
             .map(Threshold::Absolute)
             .map_err(|_| format!("bad number {v:?}"))?,
     };
-    Ok((k.to_string(), t))
+    Ok((k, t))
 }
 
 /// Nodes and edges that appeared or vanished between two graphs, by their original ids (exact

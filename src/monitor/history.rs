@@ -125,10 +125,24 @@ pub fn lock(dir: &Path, wait: Duration) -> Result<Lock> {
     }
 }
 
-/// Read a snapshot report.
-pub fn read_report(path: &Path) -> std::result::Result<Report, String> {
+/// Read a profile report written by `plumb profile --json` or kept in a history: a missing or
+/// unreadable file is an I/O error, anything but a complete report is bad input.
+pub fn read_report(path: &Path) -> Result<Report> {
+    let bytes = std::fs::read(path).map_err(io(path, "read"))?;
+    parse_report(&bytes).map_err(|problem| Error::Report {
+        path: path.to_path_buf(),
+        problem,
+    })
+}
+
+/// A snapshot as text, with the problem in words when it is not a complete report.
+fn load_snapshot(path: &Path) -> std::result::Result<Report, String> {
     let bytes = std::fs::read(path).map_err(|e| format!("cannot read: {e}"))?;
-    serde_json::from_slice(&bytes).map_err(|e| {
+    parse_report(&bytes)
+}
+
+fn parse_report(bytes: &[u8]) -> std::result::Result<Report, String> {
+    serde_json::from_slice(bytes).map_err(|e| {
         format!(
             "not a complete profile report ({e}); it may have been cut short by a crash or \
              edited"
@@ -137,6 +151,13 @@ pub fn read_report(path: &Path) -> std::result::Result<Report, String> {
 }
 
 impl History {
+    /// Open a history that must exist already (for reading it): a missing directory is an I/O
+    /// error rather than an empty history.
+    pub fn open_existing(dir: &Path) -> Result<History> {
+        std::fs::read_dir(dir).map_err(io(dir, "open the history directory"))?;
+        Self::open(dir)
+    }
+
     /// Open (or start) the history in `dir`.
     pub fn open(dir: &Path) -> Result<History> {
         let index_path = dir.join("index.json");
@@ -178,7 +199,7 @@ impl History {
         let loaded = index
             .entries
             .iter()
-            .map(|e| match read_report(&dir.join(&e.file)) {
+            .map(|e| match load_snapshot(&dir.join(&e.file)) {
                 Ok(r) => Some(r),
                 Err(what) => {
                     problems.push(Problem {
@@ -212,7 +233,7 @@ impl History {
         let mut entries = Vec::new();
         for name in files {
             let rel = format!("snapshots/{name}");
-            match read_report(&dir.join(&rel)) {
+            match load_snapshot(&dir.join(&rel)) {
                 Ok(r) => {
                     let label = name
                         .trim_end_matches(".json")

@@ -4,11 +4,11 @@
 
 use std::fmt::Write as _;
 
-use crate::monitor::drift::{FIGURES, Threshold, compare, figures_of};
+use crate::monitor::drift::{FigureKey, Threshold, compare, figures_of};
 use crate::monitor::history::History;
 use crate::output::svg::{Axis, Mark, Point, Series, chart, esc};
 
-pub fn page(h: &History, level: f64, thresholds: &[(String, Threshold)]) -> String {
+pub fn page(h: &History, level: f64, thresholds: &[(FigureKey, Threshold)]) -> String {
     let snaps = h.reports();
     let labels: Vec<String> = snaps
         .iter()
@@ -16,7 +16,7 @@ pub fn page(h: &History, level: f64, thresholds: &[(String, Threshold)]) -> Stri
         .collect();
     let names: Vec<&str> = labels.iter().map(String::as_str).collect();
     // Alerts of each snapshot against the one before it.
-    let mut alerts: Vec<Vec<String>> = vec![Vec::new(); snaps.len()];
+    let mut alerts: Vec<Vec<FigureKey>> = vec![Vec::new(); snaps.len()];
     for i in 1..snaps.len() {
         let d = compare(
             snaps[i - 1].1,
@@ -29,30 +29,28 @@ pub fn page(h: &History, level: f64, thresholds: &[(String, Threshold)]) -> Stri
             .changes
             .iter()
             .filter(|c| c.alert)
-            .map(|c| c.key.clone())
+            .map(|c| c.key)
             .collect();
     }
     let mut charts = String::new();
     // Structure first, then size.
     let order = [
-        "transitivity",
-        "average-clustering",
-        "mean-distance",
-        "effective-diameter",
-        "giant-share",
-        "nodes",
-        "edges",
-        "mean-degree",
-        "components",
+        FigureKey::Transitivity,
+        FigureKey::AverageClustering,
+        FigureKey::MeanDistance,
+        FigureKey::EffectiveDiameter,
+        FigureKey::GiantShare,
+        FigureKey::Nodes,
+        FigureKey::Edges,
+        FigureKey::MeanDegree,
+        FigureKey::Components,
     ];
     for key in order {
-        let Some((key, label, _)) = FIGURES.iter().find(|f| f.0 == key) else {
-            continue;
-        };
+        let label = key.label();
         let mut normal = Vec::new();
         let mut flagged = Vec::new();
         for (i, (_, r)) in snaps.iter().enumerate() {
-            if let Some((_, f)) = figures_of(r).into_iter().find(|(k, _)| k == key) {
+            if let Some((_, f)) = figures_of(r).into_iter().find(|(k, _)| *k == key) {
                 let p = Point {
                     x: i as f64 + 1.0,
                     y: f.value,
@@ -63,7 +61,7 @@ pub fn page(h: &History, level: f64, thresholds: &[(String, Threshold)]) -> Stri
                         _ => None,
                     },
                 };
-                if alerts[i].iter().any(|a| a == key) {
+                if alerts[i].contains(&key) {
                     flagged.push(p);
                 }
                 normal.push(p);
@@ -119,7 +117,7 @@ pub fn page(h: &History, level: f64, thresholds: &[(String, Threshold)]) -> Stri
                 alert_list,
                 "<li><strong>{}</strong>: {}</li>",
                 esc(&labels[i]),
-                esc(&a.join(", "))
+                esc(&a.iter().map(|k| k.key()).collect::<Vec<_>>().join(", "))
             );
         }
     }

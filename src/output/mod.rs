@@ -2,5 +2,7 @@
 //! report document. Produces strings and files; never computes a figure. Uses `profile`.
 
 pub mod html;
+pub mod number;
 pub mod pernode;
 pub mod svg;
+pub mod text;

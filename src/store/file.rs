@@ -351,8 +351,13 @@ fn open_checked(path: &Path, map: Arc<memmap2::Mmap>, len: usize) -> Result<Grap
         k => return Err(bad(format!("unknown id kind {k}"))),
     };
     let (at, len) = section("intake", h.intake_at, h.intake_len, 1)?;
-    let intake: Intake = serde_json::from_slice(&data[at..at + len])
+    let mut intake: Intake = serde_json::from_slice(&data[at..at + len])
         .map_err(|e| bad(format!("the intake report is unreadable: {e}")))?;
+    // The input now is the store file; the text it was packed from is kept apart.
+    intake.packed_from = Some(std::mem::replace(
+        &mut intake.source,
+        path.display().to_string(),
+    ));
     Ok(Graph {
         csr: Csr::from_parts(offsets, targets),
         ids,

@@ -41,6 +41,10 @@ pub struct Stage {
 pub struct Intake {
     /// The path as given.
     pub source: String,
+    /// When the input is a store file: the path of the text file it was packed from (the
+    /// counts below are that file's).
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub packed_from: Option<String>,
     pub format: InputFormat,
     pub compression: Compression,
     /// zstd frames in the input (several frames decode in parallel).
@@ -81,6 +85,7 @@ impl Intake {
     pub fn generated(source: &str, nodes: u64, edges: u64, isolated_nodes: u64) -> Self {
         Intake {
             source: source.to_string(),
+            packed_from: None,
             format: InputFormat::EdgeList,
             compression: Compression::None,
             frames: None,

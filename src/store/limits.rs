@@ -1,6 +1,8 @@
 //! Resource limits: how much memory a build may use, so that no claim in an input (a size
 //! line, a decompression bomb) can make plumb allocate without bound.
 
+use crate::error::ParamError;
+
 /// A default memory budget: 90% of the memory available when first asked (Linux
 /// `MemAvailable`), or 16 GiB where that cannot be read. Read once per process.
 pub fn default_memory_budget() -> u64 {
@@ -21,7 +23,7 @@ fn parse_meminfo(text: &str) -> Option<u64> {
 }
 
 /// Parse a size such as `512M`, `8G`, `1.5T` or a plain byte count (binary units).
-pub fn parse_size(s: &str) -> Result<u64, String> {
+pub fn parse_size(s: &str) -> Result<u64, ParamError> {
     let s = s.trim();
     let (num, mult) = match s.char_indices().last() {
         Some((i, c)) if c.is_ascii_alphabetic() => {
@@ -31,7 +33,11 @@ pub fn parse_size(s: &str) -> Result<u64, String> {
                 'G' => 1 << 30,
                 'T' => 1 << 40,
                 'B' => 1,
-                _ => return Err(format!("unknown unit in {s:?}; use K, M, G or T")),
+                _ => {
+                    return Err(ParamError::from(format!(
+                        "unknown unit in {s:?}; use K, M, G or T"
+                    )));
+                }
             };
             (&s[..i], m)
         }
@@ -42,7 +48,7 @@ pub fn parse_size(s: &str) -> Result<u64, String> {
         .parse()
         .map_err(|_| format!("{s:?} is not a size like 512M or 8G"))?;
     if !(v.is_finite() && v > 0.0) {
-        return Err(format!("{s:?} must be a positive size"));
+        return Err(ParamError::from(format!("{s:?} must be a positive size")));
     }
     Ok((v * mult as f64) as u64)
 }

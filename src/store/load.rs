@@ -515,6 +515,7 @@ impl<'a> Loader<'a> {
         };
         let intake = Intake {
             source: self.input.path.display().to_string(),
+            packed_from: None,
             format: if self.mtx.is_some() {
                 InputFormat::MatrixMarket
             } else {

@@ -1,41 +1,17 @@
-//! Presentation of results as text and JSON.
+//! The reports as text for a 100-column terminal (profile, intake, sweep, comparisons) and the
+//! small JSON documents of the commands that have no schema of their own. Numbers go through
+//! [`crate::output::number`], as in the HTML page.
 
 use std::fmt::Write as _;
 
-use plumb::Graph;
-use plumb::figure::{Figure, Method};
-use plumb::profile::{Distances, Profile};
-use plumb::read::source::Compression;
-use plumb::store::intake::{IdKind, InputFormat};
+use crate::output::number::decimal;
+pub use crate::output::number::{bytes, count};
 
-/// 1234567 -> "1,234,567".
-pub fn count(n: u64) -> String {
-    let s = n.to_string();
-    let mut out = String::with_capacity(s.len() + s.len() / 3);
-    for (i, c) in s.chars().enumerate() {
-        if i > 0 && (s.len() - i).is_multiple_of(3) {
-            out.push(',');
-        }
-        out.push(c);
-    }
-    out
-}
-
-/// Binary-prefixed size: "3.4 MiB".
-pub fn bytes(b: u64) -> String {
-    const UNITS: [&str; 5] = ["B", "KiB", "MiB", "GiB", "TiB"];
-    let mut v = b as f64;
-    let mut u = 0;
-    while v >= 1024.0 && u + 1 < UNITS.len() {
-        v /= 1024.0;
-        u += 1;
-    }
-    if u == 0 {
-        format!("{b} B")
-    } else {
-        format!("{v:.1} {}", UNITS[u])
-    }
-}
+use crate::figure::{Figure, Method};
+use crate::profile::{Distances, Profile};
+use crate::read::source::Compression;
+use crate::store::graph::Graph;
+use crate::store::intake::{IdKind, InputFormat};
 
 /// Columns a row's text may take, so that reports fit a 100-column terminal.
 const TEXT_WIDTH: usize = 87;
@@ -75,10 +51,11 @@ fn row(out: &mut String, label: &str, text: impl AsRef<str>) {
     }
 }
 
-pub fn intake_text(g: &Graph) -> String {
+/// What was read, headed by the command that read it (`intake`, `pack`, `profile`).
+pub fn intake_text(g: &Graph, command: &str) -> String {
     let i = &g.intake;
     let mut out = String::new();
-    let _ = writeln!(out, "plumb intake · {}", i.source);
+    let _ = writeln!(out, "plumb {command} · {}", i.source);
     let codec = match i.compression {
         Compression::None => "plain text".to_string(),
         Compression::Zstd => match i.frames {
@@ -100,11 +77,15 @@ pub fn intake_text(g: &Graph) -> String {
     } else {
         format!("{} → {} of text", bytes(i.input_bytes), bytes(i.text_bytes))
     };
-    row(
-        &mut out,
-        "read",
-        format!("{size}, {codec}, {grammar}, {ids}"),
-    );
+    let read = format!("{size}, {codec}, {grammar}, {ids}");
+    match &i.packed_from {
+        Some(text) => row(
+            &mut out,
+            "read",
+            format!("store file, mapped in place · packed from {text}: {read}"),
+        ),
+        None => row(&mut out, "read", read),
+    }
     let mut lines = format!(
         "{} = {} edge lines + {} comment + {} blank",
         count(i.lines),
@@ -214,7 +195,7 @@ fn section(out: &mut String, title: &str) {
 }
 
 fn fixed(v: f64, places: usize) -> String {
-    format!("{v:.places$}")
+    decimal(v, places)
 }
 
 /// Break `text` into lines of at most `width` characters at spaces.
@@ -257,12 +238,27 @@ fn fig(f: &Figure, places: usize) -> String {
     }
 }
 
+/// The profile as text: what was read, then one section per figure group and the methods.
 pub fn profile_text(g: &Graph, p: &Profile, per_node: Option<&std::path::Path>) -> String {
-    let mut out = intake_text(g).replacen("plumb intake ·", "plumb profile ·", 1);
+    let mut out = intake_text(g, "profile");
+    size_text(&mut out, p);
+    if let Some(k) = &p.clustering {
+        clustering_text(&mut out, k);
+    }
+    distance_text(&mut out, p);
+    if let Some(sw) = &p.small_world {
+        small_world_text(&mut out, sw);
+    }
+    method_text(&mut out, p, per_node);
+    out
+}
+
+fn size_text(out: &mut String, p: &Profile) {
+    let out = &mut *out;
     let d = &p.degrees;
-    section(&mut out, "size and degrees");
+    section(out, "size and degrees");
     row(
-        &mut out,
+        out,
         "size",
         format!(
             "{} nodes · {} edges · density {:.3e} · {} isolated",
@@ -273,7 +269,7 @@ pub fn profile_text(g: &Graph, p: &Profile, per_node: Option<&std::path::Path>) 
         ),
     );
     row(
-        &mut out,
+        out,
         "degree",
         format!(
             "min {} · mean {:.3} · max {} · <k²> {:.2} · assortativity {}",
@@ -296,11 +292,11 @@ pub fn profile_text(g: &Graph, p: &Profile, per_node: Option<&std::path::Path>) 
             }
         })
         .collect();
-    row(&mut out, "by degree", bins.join(" · "));
+    row(out, "by degree", bins.join(" · "));
     let c = &p.components;
-    section(&mut out, "components");
+    section(out, "components");
     row(
-        &mut out,
+        out,
         "count",
         format!(
             "{} · giant {} nodes ({:.2}%), {} edges · {} singletons",
@@ -311,85 +307,86 @@ pub fn profile_text(g: &Graph, p: &Profile, per_node: Option<&std::path::Path>) 
             count(c.singletons)
         ),
     );
-    if let Some(k) = &p.clustering {
-        let exact = k.transitivity.is_exact();
-        section(
-            &mut out,
-            if exact {
-                "clustering (exact, forward triangle listing)"
-            } else {
-                "clustering (estimated by wedge sampling; ± is the interval's half-width)"
-            },
-        );
+}
+
+fn clustering_text(out: &mut String, k: &crate::exact::clustering::ClusteringStats) {
+    let exact = k.transitivity.is_exact();
+    section(
+        out,
         if exact {
-            row(
-                &mut out,
-                "triangles",
-                format!(
-                    "{} · wedges {} · transitivity {}",
-                    count(k.triangles.value as u64),
-                    u64::try_from(k.wedges).map_or(k.wedges.to_string(), count),
-                    fixed(k.transitivity.value, 6)
-                ),
-            );
+            "clustering (exact, forward triangle listing)"
         } else {
-            row(
-                &mut out,
-                "triangles",
-                format!(
-                    "{} · transitivity {}",
-                    fig(&k.triangles, 0),
-                    fig(&k.transitivity, 4)
-                ),
-            );
-            row(
-                &mut out,
-                "",
-                format!(
-                    "from {} sampled wedges of {}",
-                    count(k.transitivity.sample_size.unwrap_or(0)),
-                    u64::try_from(k.wedges).map_or(k.wedges.to_string(), count),
-                ),
-            );
-        }
-        let places = if exact { 6 } else { 4 };
+            "clustering (estimated by wedge sampling; ± is the interval's half-width)"
+        },
+    );
+    if exact {
         row(
-            &mut out,
-            "local",
+            out,
+            "triangles",
             format!(
-                "average {} with degree<2 as 0",
-                fig(&k.average_zeros, places),
+                "{} · wedges {} · transitivity {}",
+                count(k.triangles.value as u64),
+                u64::try_from(k.wedges).map_or(k.wedges.to_string(), count),
+                fixed(k.transitivity.value, 6)
+            ),
+        );
+    } else {
+        row(
+            out,
+            "triangles",
+            format!(
+                "{} · transitivity {}",
+                fig(&k.triangles, 0),
+                fig(&k.transitivity, 4)
             ),
         );
         row(
-            &mut out,
+            out,
             "",
             format!(
-                "average {} over degree≥2 only",
-                fig(&k.average_deg2, places)
+                "from {} sampled wedges of {}",
+                count(k.transitivity.sample_size.unwrap_or(0)),
+                u64::try_from(k.wedges).map_or(k.wedges.to_string(), count),
             ),
         );
-        let ck: Vec<String> = k
-            .by_degree
-            .iter()
-            .map(|b| match &b.mean.interval {
-                Some(iv) if !b.mean.is_exact() => format!(
-                    "{}–{}: {:.3}±{:.3}",
-                    b.low,
-                    b.high,
-                    b.mean.value,
-                    (iv.high - iv.low) / 2.0
-                ),
-                _ => format!("{}–{}: {:.3}", b.low, b.high, b.mean.value),
-            })
-            .collect();
-        row(&mut out, "C(k)", ck.join(" · "));
     }
+    let places = if exact { 6 } else { 4 };
+    row(
+        out,
+        "local",
+        format!(
+            "average {} with degree<2 as 0",
+            fig(&k.average_zeros, places),
+        ),
+    );
+    row(
+        out,
+        "",
+        format!(
+            "average {} over degree≥2 only",
+            fig(&k.average_deg2, places)
+        ),
+    );
+    let ck: Vec<String> = k
+        .by_degree
+        .iter()
+        .map(|b| match &b.mean.interval {
+            Some(iv) if !b.mean.is_exact() => format!(
+                "{}–{}: {:.3}±{:.3}",
+                b.low,
+                b.high,
+                b.mean.value,
+                (iv.high - iv.low) / 2.0
+            ),
+            _ => format!("{}–{}: {:.3}", b.low, b.high, b.mean.value),
+        })
+        .collect();
+    row(out, "C(k)", ck.join(" · "));
+}
+
+fn distance_text(out: &mut String, p: &Profile) {
     if !matches!(p.distances, Distances::NotRequested) {
-        section(
-            &mut out,
-            &format!("distances on the {}", p.distance_node_set),
-        );
+        section(out, &format!("distances on the {}", p.distance_node_set));
     }
 
     if let Some(dm) = &p.diameter {
@@ -413,12 +410,12 @@ pub fn profile_text(g: &Graph, p: &Profile, per_node: Option<&std::path::Path>) 
                 f.value, dm.double_sweep_bound
             ),
         };
-        row(&mut out, "diameter", text);
+        row(out, "diameter", text);
     }
     match &p.distances {
         Distances::Exact(s) => {
             row(
-                &mut out,
+                out,
                 "mean",
                 format!(
                     "{} over {} ordered pairs (exact, all-pairs BFS)",
@@ -427,10 +424,10 @@ pub fn profile_text(g: &Graph, p: &Profile, per_node: Option<&std::path::Path>) 
                 ),
             );
             if let Some(r) = &s.radius {
-                row(&mut out, "radius", format!("{}", r.value));
+                row(out, "radius", format!("{}", r.value));
             }
             row(
-                &mut out,
+                out,
                 "effective",
                 format!(
                     "diameter {:.3} (90% of pairs, interpolated, self pairs excluded; {:.3} with them)",
@@ -445,13 +442,13 @@ pub fn profile_text(g: &Graph, p: &Profile, per_node: Option<&std::path::Path>) 
                 .map(|(d, &c)| format!("{d}: {}", count(c / 2)))
                 .collect();
             row(
-                &mut out,
+                out,
                 "pairs at d",
                 format!("{} (unordered)", dist.join(" · ")),
             );
             if s.unreachable_pairs_in_graph > 0 {
                 row(
-                    &mut out,
+                    out,
                     "unreached",
                     format!(
                         "{} unordered pairs of the whole graph are in different components",
@@ -461,9 +458,9 @@ pub fn profile_text(g: &Graph, p: &Profile, per_node: Option<&std::path::Path>) 
             }
         }
         Distances::Estimated(e) => {
-            row(&mut out, "mean", fig(&e.mean, 4));
+            row(out, "mean", fig(&e.mean, 4));
             row(
-                &mut out,
+                out,
                 "effective",
                 format!(
                     "diameter {} (90% of pairs, interpolated, self pairs excluded)",
@@ -478,13 +475,13 @@ pub fn profile_text(g: &Graph, p: &Profile, per_node: Option<&std::path::Path>) 
                 .map(|(d, f)| format!("{}: {:.1}%", d + 1, 100.0 * f.value))
                 .collect();
             row(
-                &mut out,
+                out,
                 "pairs at d",
                 format!("{} (share of pairs, estimated)", dist.join(" · ")),
             );
             if e.unreachable_pairs_in_graph > 0 {
                 row(
-                    &mut out,
+                    out,
                     "unreached",
                     format!(
                         "{} unordered pairs of the whole graph are in different components",
@@ -493,72 +490,78 @@ pub fn profile_text(g: &Graph, p: &Profile, per_node: Option<&std::path::Path>) 
                 );
             }
         }
-        Distances::Empty => row(&mut out, "mean", "no pairs: the graph has no edges"),
+        Distances::Empty => row(out, "mean", "no pairs: the graph has no edges"),
         Distances::NotRequested => {}
     }
-    if let Some(sw) = &p.small_world {
-        section(
-            &mut out,
-            &format!("small-world comparison on the {}", sw.node_set),
+}
+
+fn small_world_text(out: &mut String, sw: &crate::models::smallworld::SmallWorld) {
+    section(
+        out,
+        &format!("small-world comparison on the {}", sw.node_set),
+    );
+    for r in &sw.references {
+        let part = |label: &str, f: &Option<Figure>, places: usize| {
+            f.as_ref().map(|f| format!("{label} {}", fig(f, places)))
+        };
+        let parts: Vec<String> = [
+            part("C", &r.transitivity, 4),
+            part("avg C", &r.average_clustering, 4),
+            part("L", &r.mean_distance, 3),
+        ]
+        .into_iter()
+        .flatten()
+        .collect();
+        row(out, "reference", format!("{}:", r.name));
+        row(out, "", parts.join(" · "));
+    }
+    for c in &sw.coefficients {
+        row(
+            out,
+            "with",
+            format!("{} against {}:", c.clustering, c.random_reference),
         );
-        for r in &sw.references {
-            let part = |label: &str, f: &Option<Figure>, places: usize| {
-                f.as_ref().map(|f| format!("{label} {}", fig(f, places)))
-            };
-            let parts: Vec<String> = [
-                part("C", &r.transitivity, 4),
-                part("avg C", &r.average_clustering, 4),
-                part("L", &r.mean_distance, 3),
-            ]
-            .into_iter()
-            .flatten()
-            .collect();
-            row(&mut out, "reference", format!("{}:", r.name));
-            row(&mut out, "", parts.join(" · "));
-        }
-        for c in &sw.coefficients {
-            row(
-                &mut out,
-                "with",
-                format!("{} against {}:", c.clustering, c.random_reference),
-            );
-            row(&mut out, "sigma", fig(&c.sigma, 3));
-            row(&mut out, "omega", fig(&c.omega, 3));
-            row(&mut out, "propensity", fig(&c.propensity, 3));
-            for (i, v) in c.verdicts.iter().enumerate() {
-                row(&mut out, if i == 0 { "reading" } else { "" }, v);
-            }
-        }
-        for c in &sw.caveats {
-            for (i, line) in wrap(c, 86).iter().enumerate() {
-                row(&mut out, if i == 0 { "note" } else { "" }, line);
-            }
+        row(out, "sigma", fig(&c.sigma, 3));
+        row(out, "omega", fig(&c.omega, 3));
+        row(out, "propensity", fig(&c.propensity, 3));
+        for (i, v) in c.verdicts.iter().enumerate() {
+            row(out, if i == 0 { "reading" } else { "" }, v);
         }
     }
-    section(&mut out, "method");
+    for c in &sw.caveats {
+        for (i, line) in wrap(c, 86).iter().enumerate() {
+            row(out, if i == 0 { "note" } else { "" }, line);
+        }
+    }
+}
+
+fn method_text(out: &mut String, p: &Profile, per_node: Option<&std::path::Path>) {
+    section(out, "method");
     for d in &p.plan {
-        row(&mut out, &d.group, &d.method);
-        row(&mut out, "", format!("why: {}", d.reason));
+        row(out, &d.group, &d.method);
+        row(out, "", format!("why: {}", d.reason));
     }
     let parts: Vec<String> = p
         .stages
         .iter()
         .map(|s| format!("{} {:.2} s", s.name, s.seconds))
         .collect();
-    row(&mut out, "time", parts.join(" · "));
+    row(out, "time", parts.join(" · "));
     if let Some(path) = per_node {
-        row(
-            &mut out,
-            "per node",
-            format!("written to {}", path.display()),
-        );
+        row(out, "per node", format!("written to {}", path.display()));
     }
-    out
 }
 
-/// Any result as pretty JSON under `key`, with plumb's version.
+/// Version of the small JSON documents below (`plumb-intake`, `plumb-sweep`, `plumb-track`,
+/// `plumb-comparison`); bumped on any change that could break a reader.
+pub const DOCUMENT_VERSION: u32 = 1;
+
+/// Any result as pretty JSON under `key`, with the document's schema name (`plumb-KEY`), its
+/// version and plumb's version.
 pub fn to_json<T: serde::Serialize>(key: &str, value: &T) -> String {
     let v = serde_json::json!({
+        "schema": format!("plumb-{key}"),
+        "schema_version": DOCUMENT_VERSION,
         "plumb_version": env!("CARGO_PKG_VERSION"),
         key: value,
     });
@@ -567,7 +570,7 @@ pub fn to_json<T: serde::Serialize>(key: &str, value: &T) -> String {
     s
 }
 
-pub fn sweep_text(s: &plumb::models::sweep::Sweep) -> String {
+pub fn sweep_text(s: &crate::models::sweep::Sweep) -> String {
     let mut out = String::new();
     let graphs = s.rows.first().map_or(0, |r| r.graphs);
     let level = s
@@ -612,8 +615,8 @@ pub fn sweep_text(s: &plumb::models::sweep::Sweep) -> String {
 }
 
 pub fn drift_text(
-    d: &plumb::monitor::drift::Drift,
-    churn: Option<&plumb::monitor::drift::ExactChurn>,
+    d: &crate::monitor::drift::Drift,
+    churn: Option<&crate::monitor::drift::ExactChurn>,
 ) -> String {
     let mut out = String::new();
     let _ = writeln!(out, "  ── {} → {}", d.before, d.after);
@@ -636,39 +639,7 @@ pub fn drift_text(
         ),
     );
     for c in &d.changes {
-        let diff = &c.difference;
-        let iv = match (&diff.method, diff.interval) {
-            (Method::Estimate { .. }, Some(iv)) => {
-                format!(" (interval {:+.4} to {:+.4})", iv.low, iv.high)
-            }
-            _ => " (exact)".to_string(),
-        };
-        let mark = if c.alert {
-            "ALERT"
-        } else if c.significant {
-            "change"
-        } else {
-            "same"
-        };
-        let min = match c.threshold {
-            plumb::monitor::drift::Threshold::Absolute(t) => format!("min {t}"),
-            plumb::monitor::drift::Threshold::Relative(t) => format!("min {}%", 100.0 * t),
-        };
-        row(
-            &mut out,
-            mark,
-            format!(
-                "{}: {} → {} · {}{iv} · {min}",
-                c.label,
-                short(c.before),
-                short(c.after),
-                if diff.value.fract() == 0.0 {
-                    format!("{:+}", diff.value as i64)
-                } else {
-                    format!("{:+.4}", diff.value)
-                }
-            ),
-        );
+        change_row(&mut out, c, d.level);
     }
     if let Some(ch) = churn {
         row(
@@ -688,7 +659,7 @@ pub fn drift_text(
     out
 }
 
-pub fn sketch_churn_text(c: &plumb::estimate::sketch::Churn) -> String {
+pub fn sketch_churn_text(c: &crate::estimate::sketch::Churn) -> String {
     let mut out = String::new();
     let f = |x: &Figure| match x.interval {
         Some(iv) => format!(
@@ -714,23 +685,65 @@ pub fn sketch_churn_text(c: &plumb::estimate::sketch::Churn) -> String {
     out
 }
 
-fn short(v: f64) -> String {
-    if v.fract() == 0.0 && v.abs() < 1e15 {
-        count(v.abs() as u64).to_string() + if v < 0.0 { " (negative)" } else { "" }
+/// One figure's change, worded by what it means: the same, within its minimum effect, beyond it
+/// but within the sampling error, or an alert. Values print with the digits that tell them apart.
+fn change_row(out: &mut String, c: &crate::monitor::drift::Change, level: f64) {
+    use crate::monitor::drift::{Threshold, Verdict};
+    use crate::output::number::{places_for, plain, signed};
+    let diff = &c.difference;
+    let places = places_for(diff.value, 4);
+    let iv = match (&diff.method, diff.interval) {
+        (Method::Estimate { .. }, Some(iv)) => {
+            format!(" (interval {} to {})", signed(iv.low), signed(iv.high))
+        }
+        _ => " (exact)".to_string(),
+    };
+    let min = match c.threshold {
+        Threshold::Absolute(t) => format!("{t}"),
+        Threshold::Relative(t) => format!("{}%", 100.0 * t),
+    };
+    let (label, meaning) = match c.verdict {
+        Verdict::Same => ("same", "no difference".to_string()),
+        Verdict::WithinThreshold => ("within", format!("within the minimum effect {min}")),
+        Verdict::BeyondThresholdNotSignificant => (
+            "unsettled",
+            format!(
+                "beyond the minimum effect {min}, but not significant at {:.0}%",
+                100.0 * level
+            ),
+        ),
+        Verdict::Alert => (
+            "ALERT",
+            format!("beyond the minimum effect {min} and significant"),
+        ),
+    };
+    let text = if c.verdict == Verdict::Same {
+        format!("{}: {} · {meaning}", c.label, plain(c.before, places))
     } else {
-        format!("{v:.4}")
-    }
+        format!(
+            "{}: {} → {} · {}{iv} · {meaning}",
+            c.label,
+            plain(c.before, places),
+            plain(c.after, places),
+            signed(diff.value)
+        )
+    };
+    row(out, label, text);
 }
 
 pub fn intake_json(g: &Graph) -> String {
     #[derive(serde::Serialize)]
     struct Out<'a> {
+        schema: &'static str,
+        schema_version: u32,
         plumb_version: &'static str,
-        intake: &'a plumb::store::intake::Intake,
-        degree: plumb::store::graph::DegreeSummary,
+        intake: &'a crate::store::intake::Intake,
+        degree: crate::store::graph::DegreeSummary,
         store_bytes: u64,
     }
     let out = Out {
+        schema: "plumb-intake",
+        schema_version: DOCUMENT_VERSION,
         plumb_version: env!("CARGO_PKG_VERSION"),
         intake: &g.intake,
         degree: g.degree_summary(),
@@ -739,18 +752,4 @@ pub fn intake_json(g: &Graph) -> String {
     let mut s = serde_json::to_string_pretty(&out).unwrap_or_default();
     s.push('\n');
     s
-}
-
-#[cfg(test)]
-mod tests {
-    use super::*;
-
-    #[test]
-    fn formats() {
-        assert_eq!(count(0), "0");
-        assert_eq!(count(1234567), "1,234,567");
-        assert_eq!(count(100), "100");
-        assert_eq!(bytes(512), "512 B");
-        assert_eq!(bytes(3 * 1024 * 1024 + 400_000), "3.4 MiB");
-    }
 }

@@ -1,0 +1,191 @@
+//! Rough edges a new user hits, each pinned by the exit code, message or key a user sees.
+
+use std::process::{Command, Output};
+
+fn plumb(args: &[&str]) -> Output {
+    Command::new(env!("CARGO_BIN_EXE_plumb"))
+        .args(args)
+        .current_dir(env!("CARGO_MANIFEST_DIR"))
+        .output()
+        .unwrap()
+}
+
+fn text(o: &Output) -> String {
+    String::from_utf8_lossy(&o.stdout).into_owned()
+}
+
+fn err(o: &Output) -> String {
+    String::from_utf8_lossy(&o.stderr).into_owned()
+}
+
+const DEMO: &str = "demo-data/larkspur/replies-2026-W40.tsv.zst";
+const KARATE: &str = "tests/data/karate.mtx";
+
+#[test]
+fn dash_means_standard_output_for_every_profile_output() {
+    let dir = tempfile::tempdir().unwrap();
+    for (flag, starts) in [("--html", "<!DOCTYPE html>"), ("--per-node", "id\tdegree")] {
+        let out = plumb(&["profile", KARATE, flag, "-"]);
+        assert!(out.status.success(), "{flag}: {}", err(&out));
+        assert!(text(&out).starts_with(starts), "{flag}: {}", text(&out));
+    }
+    // No file named `-` appears anywhere.
+    assert!(
+        !std::path::Path::new(env!("CARGO_MANIFEST_DIR"))
+            .join("-")
+            .exists()
+    );
+    // Two outputs cannot share standard output.
+    let out = plumb(&["profile", KARATE, "--html", "-", "--json", "-"]);
+    assert_eq!(out.status.code(), Some(2), "{}", err(&out));
+    assert!(err(&out).contains("only one of"), "{}", err(&out));
+    // Outputs that must be files refuse `-` with a usage error.
+    let out = plumb(&["pack", KARATE, "-o", "-"]);
+    assert_eq!(out.status.code(), Some(2), "{}", err(&out));
+    let out = plumb(&["synth", "-o", "-", "gnm", "--nodes", "10", "--edges", "5"]);
+    assert_eq!(out.status.code(), Some(2), "{}", err(&out));
+    let h = dir.path().join("h");
+    let out = plumb(&["trend", h.to_str().unwrap(), "-o", "-"]);
+    assert_eq!(out.status.code(), Some(2), "{}", err(&out));
+}
+
+#[test]
+fn missing_files_are_io_errors_and_leave_nothing_behind() {
+    let dir = tempfile::tempdir().unwrap();
+    let missing = dir.path().join("no-such-export.tsv");
+    let history = dir.path().join("history");
+    // trend of a missing history: exit 4, no page.
+    let page = dir.path().join("trend.html");
+    let out = plumb(&[
+        "trend",
+        history.to_str().unwrap(),
+        "-o",
+        page.to_str().unwrap(),
+    ]);
+    assert_eq!(out.status.code(), Some(4), "{}", err(&out));
+    assert!(!page.exists());
+    // An existing but empty history has nothing to draw.
+    std::fs::create_dir(&history).unwrap();
+    let out = plumb(&[
+        "trend",
+        history.to_str().unwrap(),
+        "-o",
+        page.to_str().unwrap(),
+    ]);
+    assert_eq!(out.status.code(), Some(3), "{}", err(&out));
+    assert!(err(&out).contains("no readable snapshot"), "{}", err(&out));
+    std::fs::remove_dir(&history).unwrap();
+    // compare with a missing file (report or graph): exit 4 as documented.
+    for name in ["gone.json", "gone.tsv"] {
+        let gone = dir.path().join(name);
+        let out = plumb(&["compare", gone.to_str().unwrap(), KARATE]);
+        assert_eq!(out.status.code(), Some(4), "{name}: {}", err(&out));
+    }
+    // track with a missing input: exit 4 and no history directory created.
+    let out = plumb(&[
+        "track",
+        history.to_str().unwrap(),
+        missing.to_str().unwrap(),
+    ]);
+    assert_eq!(out.status.code(), Some(4), "{}", err(&out));
+    assert!(!history.exists(), "track left {} behind", history.display());
+}
+
+#[test]
+fn zero_threads_is_a_usage_error() {
+    let out = plumb(&["--threads", "0", "intake", KARATE]);
+    assert_eq!(out.status.code(), Some(2), "{}", err(&out));
+}
+
+#[test]
+fn every_option_a_user_types_has_help() {
+    let out = plumb(&["trend", "--help"]);
+    assert!(
+        text(&out).contains("The history directory"),
+        "{}",
+        text(&out)
+    );
+    let out = plumb(&["sweep", "--help"]);
+    let help = text(&out);
+    assert!(help.contains("--probabilities"), "{help}");
+    assert!(!help.contains("--p <"), "{help}");
+    assert!(help.contains("Nodes of each graph"), "{help}");
+    assert!(help.contains("Seed of every random choice"), "{help}");
+    for model in ["lattice", "rewired-lattice", "gnm", "gnp", "attach"] {
+        let out = plumb(&["synth", model, "--help"]);
+        assert!(out.status.success(), "{model}");
+        let help = text(&out);
+        // Every model parameter line carries a description after its value name.
+        for line in help.lines().filter(|l| l.trim_start().starts_with("--")) {
+            if line.contains("--help") || line.contains("--out") || line.contains("--seed") {
+                continue;
+            }
+            let words = line.split_whitespace().count();
+            assert!(words > 2, "synth {model}: {line:?} has no help text");
+        }
+    }
+}
+
+#[test]
+fn each_command_names_itself_and_its_documents() {
+    let dir = tempfile::tempdir().unwrap();
+    let store = dir.path().join("karate.plumb");
+    let out = plumb(&["pack", KARATE, "-o", store.to_str().unwrap()]);
+    assert!(out.status.success(), "{}", err(&out));
+    assert!(text(&out).starts_with("plumb pack ·"), "{}", text(&out));
+    // A store file is named as the input; what it was packed from is said.
+    let out = plumb(&["intake", store.to_str().unwrap()]);
+    let t = text(&out);
+    assert!(
+        t.starts_with(&format!("plumb intake · {}", store.display())),
+        "{t}"
+    );
+    assert!(t.contains("packed from tests/data/karate.mtx"), "{t}");
+    let out = plumb(&["intake", KARATE, "--json", "-"]);
+    let v: serde_json::Value = serde_json::from_slice(&out.stdout).unwrap();
+    assert_eq!(v["schema"], "plumb-intake");
+    assert_eq!(v["schema_version"], 1);
+    let out = plumb(&[
+        "sweep",
+        "--nodes",
+        "200",
+        "--degree",
+        "4",
+        "--probabilities",
+        "0,1",
+        "--graphs",
+        "2",
+        "--json",
+        "-",
+    ]);
+    let v: serde_json::Value = serde_json::from_slice(&out.stdout).unwrap();
+    assert_eq!(v["schema"], "plumb-sweep");
+    assert_eq!(v["schema_version"], 1);
+}
+
+#[test]
+fn comparison_rows_say_what_each_difference_means() {
+    // Two exports one week apart: small exact differences stay within their minimum effects.
+    let out = plumb(&[
+        "compare",
+        DEMO,
+        "demo-data/larkspur/replies-2026-W41.tsv.zst",
+        "--figures",
+        "clustering",
+    ]);
+    let t = text(&out);
+    assert!(
+        out.status.code() == Some(0) || out.status.code() == Some(6),
+        "{}",
+        err(&out)
+    );
+    assert!(!t.contains("  change "), "{t}");
+    assert!(t.contains("within the minimum effect"), "{t}");
+    // Values that differ never print alike.
+    for line in t.lines().filter(|l| l.contains(" → ") && !l.contains("──")) {
+        let (_, rest) = line.split_once(": ").unwrap();
+        let (before, rest) = rest.split_once(" → ").unwrap();
+        let after = rest.split(" · ").next().unwrap();
+        assert_ne!(before, after, "{line}");
+    }
+}
