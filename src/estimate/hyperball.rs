@@ -14,6 +14,7 @@
 use rayon::prelude::*;
 use xxhash_rust::xxh3::xxh3_64_with_seed;
 
+use super::hll::{count, register_of};
 use super::interval::t_for;
 use crate::exact::distances::effective_diameter;
 use crate::figure::{Figure, Interval};
@@ -104,10 +105,7 @@ pub fn neighbourhood_function(
             for (i, (r, e)) in regs.chunks_mut(m).zip(est.iter_mut()).enumerate() {
                 let v = (c * CHUNK + i) as u64;
                 let h = xxh3_64_with_seed(&v.to_le_bytes(), seed);
-                let j = (h >> (64 - b)) as usize;
-                // Rank of the first one bit in the remaining 64 - b bits (capped when all zero).
-                let rest = h << b;
-                let rank = (rest.leading_zeros().min(64 - b) + 1) as u8;
+                let (j, rank) = register_of(h, b);
                 r[j] = rank;
                 *e = count(r, q);
             }
@@ -168,64 +166,6 @@ pub fn neighbourhood_function(
 fn chunked_sum(x: &[f64]) -> f64 {
     let parts: Vec<f64> = x.par_chunks(CHUNK).map(|c| c.iter().sum()).collect();
     det_sum(parts.len(), |i| parts[i])
-}
-
-/// The cardinality estimate of one counter by Ertl's improved estimator (O. Ertl, "New
-/// cardinality estimation algorithms for HyperLogLog sketches", arXiv:1702.01284, 2017), which
-/// stays nearly unbiased across the range where the original estimator switches to linear
-/// counting; the original's bias there showed as under-coverage in this project's coverage test.
-/// `q` = 64 − log2(registers) is the largest rank a register can take, minus one.
-fn count(r: &[u8], q: usize) -> f64 {
-    let m = r.len() as f64;
-    let mut c = [0u32; 66];
-    for &x in r {
-        c[x as usize] += 1;
-    }
-    if c[0] as f64 == m {
-        return 0.0;
-    }
-    let mut z = m * tau(1.0 - c[q + 1] as f64 / m);
-    for k in (1..=q).rev() {
-        z = 0.5 * (z + c[k] as f64);
-    }
-    z += m * sigma(c[0] as f64 / m);
-    m * m / (2.0 * std::f64::consts::LN_2) / z
-}
-
-/// sigma(x) = x + sum_{k>=1} x^(2^k) 2^(k-1) (Ertl 2017).
-fn sigma(mut x: f64) -> f64 {
-    if x == 1.0 {
-        return f64::INFINITY;
-    }
-    let mut y = 1.0;
-    let mut z = x;
-    loop {
-        x *= x;
-        let before = z;
-        z += x * y;
-        y += y;
-        if z == before {
-            return z;
-        }
-    }
-}
-
-/// tau(x) = (1 - x - sum_{k>=1} (1 - x^(2^-k))^2 2^-k) / 3 (Ertl 2017).
-fn tau(mut x: f64) -> f64 {
-    if x == 0.0 || x == 1.0 {
-        return 0.0;
-    }
-    let mut y = 1.0;
-    let mut z = 1.0 - x;
-    loop {
-        x = x.sqrt();
-        let before = z;
-        y *= 0.5;
-        z -= (1.0 - x).powi(2) * y;
-        if z == before {
-            return z / 3.0;
-        }
-    }
 }
 
 /// Figures read off one neighbourhood function.

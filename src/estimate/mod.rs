@@ -3,6 +3,7 @@
 //! share. Uses `exact` (each estimator has an exact twin) and `build`.
 
 pub mod distance;
+pub(crate) mod hll;
 pub mod hyperball;
 pub mod interval;
 pub mod sample;

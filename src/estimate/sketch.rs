@@ -1,17 +1,21 @@
 //! Distinct-count sketches of a graph's node ids and edges, by their original ids: small enough
 //! to keep with every snapshot, and mergeable, so two exports can be compared for churn (nodes
-//! and edges that appeared or vanished) without either file. HyperLogLog++ (Heule, Nunkesser &
-//! Hall, "HyperLogLog in practice", EDBT 2013) from the `hyperloglogplus` crate, with one fixed
-//! seeded hash of our own; the crate's merge does not check that two sketches hash alike, so
-//! this wrapper does (same seed and precision, or no merge).
+//! and edges that appeared or vanished) without either file. HyperLogLog registers (Flajolet,
+//! Fusy, Gandouet & Meunier, AofA 2007) counted by Ertl's improved estimator (arXiv:1702.01284,
+//! 2017), which stays nearly unbiased at small counts, where HyperLogLog++ (Heule, Nunkesser &
+//! Hall, EDBT 2013) needs its sparse mode.
+//!
+//! The registers are our own, not a crate's private state, so reports keep a block of our own
+//! layout (scheme, precision, hash, seed, registers) that a dependency upgrade cannot change.
+//! Two sketches merge only when they hash alike (same seed and precision).
 
-use std::hash::{BuildHasher, Hasher};
-
-use hyperloglogplus::{HyperLogLog, HyperLogLogPlus};
+use base64::Engine as _;
+use base64::engine::general_purpose::STANDARD as BASE64;
 use rayon::prelude::*;
 use serde::{Deserialize, Serialize};
 use xxhash_rust::xxh3::{xxh3_64, xxh3_64_with_seed};
 
+use crate::estimate::hll::{count, register_of};
 use crate::estimate::interval::z_for;
 use crate::figure::{Figure, Interval};
 use crate::store::graph::Graph;
@@ -19,52 +23,130 @@ use crate::store::graph::Graph;
 /// Default precision: 2^14 registers, relative standard error about 0.8%.
 pub const DEFAULT_PRECISION: u8 = 14;
 
-/// A hasher built from a seed, so a sketch's hash is part of its saved state.
-#[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize, Deserialize)]
-pub struct SeededHash {
+/// The scheme name written in every block.
+pub const SCHEME: &str = "hyperloglog";
+
+/// How keys are hashed, written in every block.
+pub const HASH: &str = "xxh3-64 of the key's 8 little-endian bytes, seeded with `seed`; a node's \
+                        key is xxh3-64 of its id's bytes, an edge's key is xxh3-64 of its two node \
+                        keys, smaller first, as 16 little-endian bytes";
+
+/// One HyperLogLog counter: a byte per register.
+#[derive(Debug, Clone, PartialEq, Eq)]
+struct Registers(Vec<u8>);
+
+impl Registers {
+    fn new(precision: u8) -> Self {
+        Registers(vec![0; 1 << precision])
+    }
+
+    fn insert(&mut self, key: u64, precision: u8, seed: u64) {
+        let h = xxh3_64_with_seed(&key.to_le_bytes(), seed);
+        let (j, rank) = register_of(h, precision as u32);
+        self.0[j] = self.0[j].max(rank);
+    }
+
+    fn merge(&mut self, other: &Registers) {
+        for (a, &b) in self.0.iter_mut().zip(&other.0) {
+            *a = (*a).max(b);
+        }
+    }
+
+    fn count(&self, precision: u8) -> f64 {
+        count(&self.0, 64 - precision as usize)
+    }
+}
+
+/// Sketches of the node ids and of the edges (unordered id pairs) of one graph.
+#[derive(Debug, Clone, PartialEq, Eq, Serialize, Deserialize)]
+#[serde(try_from = "SketchBlock", into = "SketchBlock")]
+pub struct IdSketch {
+    /// log2 of the registers per counter.
+    pub precision: u8,
+    /// Hash seed.
     pub seed: u64,
+    /// Exact counts of the graph sketched (known when it was loaded).
+    pub node_count: u64,
+    /// Exact edge count of the graph sketched.
+    pub edge_count: u64,
+    nodes: Registers,
+    edges: Registers,
 }
 
-#[derive(Debug, Clone)]
-pub struct SeededHasher {
-    seed: u64,
-    state: u64,
+/// The sketch as reports keep it: our own layout, versioned by its scheme name.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize, schemars::JsonSchema)]
+pub struct SketchBlock {
+    /// Always "hyperloglog": one byte per register, the largest rank seen.
+    pub scheme: String,
+    /// log2 of the registers per counter (4 to 18).
+    pub precision: u8,
+    /// How keys are hashed, in words.
+    pub hash: String,
+    /// The hash seed; sketches merge only with equal seeds and precisions.
+    pub seed: u64,
+    /// Exact node count of the graph sketched.
+    pub node_count: u64,
+    /// Exact edge count of the graph sketched.
+    pub edge_count: u64,
+    /// The node counter's registers, zstd-compressed, base64 (RFC 4648).
+    pub nodes: String,
+    /// The edge counter's registers, zstd-compressed, base64 (RFC 4648).
+    pub edges: String,
 }
 
-impl Hasher for SeededHasher {
-    fn write(&mut self, bytes: &[u8]) {
-        self.state = xxh3_64_with_seed(bytes, self.seed ^ self.state);
-    }
-    fn write_u64(&mut self, x: u64) {
-        self.write(&x.to_le_bytes());
-    }
-    fn finish(&self) -> u64 {
-        self.state
-    }
+fn pack(r: &Registers) -> String {
+    BASE64.encode(zstd::bulk::compress(&r.0, 19).unwrap_or_default())
 }
 
-impl BuildHasher for SeededHash {
-    type Hasher = SeededHasher;
-    fn build_hasher(&self) -> SeededHasher {
-        SeededHasher {
-            seed: self.seed,
-            state: 0,
+fn unpack(text: &str, precision: u8, what: &str) -> Result<Registers, String> {
+    let want = 1usize << precision;
+    let packed = BASE64
+        .decode(text)
+        .map_err(|e| format!("{what} registers are not base64: {e}"))?;
+    let bytes = zstd::bulk::decompress(&packed, want)
+        .map_err(|e| format!("{what} registers do not decompress: {e}"))?;
+    if bytes.len() != want || bytes.iter().any(|&r| r as u32 > 65 - precision as u32) {
+        return Err(format!(
+            "{what} registers do not fit precision {precision} ({} bytes)",
+            bytes.len()
+        ));
+    }
+    Ok(Registers(bytes))
+}
+
+impl From<IdSketch> for SketchBlock {
+    fn from(s: IdSketch) -> Self {
+        SketchBlock {
+            scheme: SCHEME.into(),
+            precision: s.precision,
+            hash: HASH.into(),
+            seed: s.seed,
+            node_count: s.node_count,
+            edge_count: s.edge_count,
+            nodes: pack(&s.nodes),
+            edges: pack(&s.edges),
         }
     }
 }
 
-type Hll = HyperLogLogPlus<u64, SeededHash>;
-
-/// Sketches of the node ids and of the edges (unordered id pairs) of one graph.
-#[derive(Debug, Clone, Serialize, Deserialize)]
-pub struct IdSketch {
-    pub precision: u8,
-    pub seed: u64,
-    /// Exact counts of the graph sketched (known when it was loaded).
-    pub node_count: u64,
-    pub edge_count: u64,
-    nodes: Hll,
-    edges: Hll,
+impl TryFrom<SketchBlock> for IdSketch {
+    type Error = String;
+    fn try_from(b: SketchBlock) -> Result<Self, String> {
+        if b.scheme != SCHEME {
+            return Err(format!("unknown sketch scheme {:?}", b.scheme));
+        }
+        if !(4..=18).contains(&b.precision) {
+            return Err(format!("precision {} outside 4..=18", b.precision));
+        }
+        Ok(IdSketch {
+            precision: b.precision,
+            seed: b.seed,
+            node_count: b.node_count,
+            edge_count: b.edge_count,
+            nodes: unpack(&b.nodes, b.precision, "node")?,
+            edges: unpack(&b.edges, b.precision, "edge")?,
+        })
+    }
 }
 
 /// Why two sketches cannot be combined.
@@ -80,10 +162,6 @@ pub struct Churn {
     pub vanished_nodes: Figure,
     pub appeared_edges: Figure,
     pub vanished_edges: Figure,
-}
-
-fn new_hll(precision: u8, seed: u64) -> Hll {
-    HyperLogLogPlus::new(precision, SeededHash { seed }).expect("precision checked by caller")
 }
 
 /// The key of a node: a hash of its original id's bytes, so equal ids in two files agree.
@@ -110,20 +188,21 @@ impl IdSketch {
             .into_par_iter()
             .map(|v| node_key(&g.ids.label_bytes(v)))
             .collect();
-        let merge = |mut a: (Hll, Hll), b: (Hll, Hll)| {
-            a.0.merge(&b.0).expect("same precision");
-            a.1.merge(&b.1).expect("same precision");
+        let merge = |mut a: (Registers, Registers), b: (Registers, Registers)| {
+            a.0.merge(&b.0);
+            a.1.merge(&b.1);
             a
         };
-        let fresh = || (new_hll(precision, seed), new_hll(precision, seed));
+        let fresh = || (Registers::new(precision), Registers::new(precision));
         let (nodes, edges) = (0..n as u32)
             .into_par_iter()
             .fold(fresh, |mut acc, v| {
                 let kv = keys[v as usize];
-                acc.0.insert(&kv);
+                acc.0.insert(kv, precision, seed);
                 for &u in g.csr.neighbors(v) {
                     if u > v {
-                        acc.1.insert(&edge_key(kv, keys[u as usize]));
+                        acc.1
+                            .insert(edge_key(kv, keys[u as usize]), precision, seed);
                     }
                 }
                 acc
@@ -146,7 +225,10 @@ impl IdSketch {
 
     /// Estimated distinct nodes and edges (the exact counts are kept too).
     pub fn counts(&self) -> (f64, f64) {
-        (self.nodes.clone().count(), self.edges.clone().count())
+        (
+            self.nodes.count(self.precision),
+            self.edges.count(self.precision),
+        )
     }
 
     fn check(&self, other: &IdSketch) -> Result<(), Mismatch> {
@@ -166,17 +248,18 @@ impl IdSketch {
     /// sketch's relative standard error times the union.
     pub fn churn(&self, after: &IdSketch, level: f64) -> Result<Churn, Mismatch> {
         self.check(after)?;
-        let union = |a: &Hll, b: &Hll| {
+        let union = |a: &Registers, b: &Registers| {
             let mut u = a.clone();
-            u.merge(b).expect("checked");
-            u.count()
+            u.merge(b);
+            u.count(self.precision)
         };
         let nodes = union(&self.nodes, &after.nodes);
         let edges = union(&self.edges, &after.edges);
         let z = z_for(level);
         let rse = self.rse();
         let name = format!(
-            "HyperLogLog++ union of id sketches (Heule, Nunkesser & Hall 2013), 2^{} registers",
+            "HyperLogLog union of id sketches (Flajolet et al. 2007; Ertl 2017 estimator), 2^{} \
+             registers",
             self.precision
         );
         let fig = |u: f64, known: u64, most: u64| {
@@ -200,20 +283,6 @@ impl IdSketch {
             appeared_edges: fig(edges, self.edge_count, after.edge_count),
             vanished_edges: fig(edges, after.edge_count, self.edge_count),
         })
-    }
-}
-
-impl PartialEq for IdSketch {
-    /// Equal parameters, exact counts and estimates (the crate's sketches have no equality).
-    fn eq(&self, other: &Self) -> bool {
-        (self.precision, self.seed, self.node_count, self.edge_count)
-            == (
-                other.precision,
-                other.seed,
-                other.node_count,
-                other.edge_count,
-            )
-            && self.counts() == other.counts()
     }
 }
 

@@ -13,7 +13,7 @@ use crate::profile::{Groups, Profile, ProfileOptions};
 /// Name of the document kind, for readers that receive many kinds.
 pub const SCHEMA_NAME: &str = "plumb-profile";
 /// Bumped on any change that could break a reader; additions of optional fields do not bump it.
-pub const SCHEMA_VERSION: u32 = 1;
+pub const SCHEMA_VERSION: u32 = 2;
 
 /// The input file as given.
 #[derive(Debug, Clone, PartialEq, Serialize, Deserialize, schemars::JsonSchema)]
@@ -63,12 +63,25 @@ pub struct Report {
     pub input: InputFile,
     pub settings: Settings,
     pub profile: Profile,
-    /// HyperLogLog++ sketches of the node ids and edges by original id (precision 14, hash seed
+    /// HyperLogLog sketches of the node ids and edges by original id (precision 14, hash seed
     /// 0), so that two reports can be compared for churn without their input files. Absent when
-    /// not computed. Layout: the `hyperloglogplus` crate's serde form, wrapped by plumb.
-    #[serde(default, skip_serializing_if = "Option::is_none")]
-    #[schemars(with = "Option<serde_json::Value>")]
+    /// not computed; a sketch in a layout this plumb does not read (reports of schema version 1)
+    /// is ignored rather than refusing the report.
+    #[serde(
+        default,
+        skip_serializing_if = "Option::is_none",
+        deserialize_with = "lenient_sketch"
+    )]
+    #[schemars(with = "Option<crate::estimate::sketch::SketchBlock>")]
     pub ids: Option<crate::estimate::sketch::IdSketch>,
+}
+
+/// The id sketch when it is in a layout this plumb reads, else none.
+fn lenient_sketch<'de, D: serde::Deserializer<'de>>(
+    d: D,
+) -> std::result::Result<Option<crate::estimate::sketch::IdSketch>, D::Error> {
+    let v: Option<serde_json::Value> = Option::deserialize(d)?;
+    Ok(v.and_then(|v| serde_json::from_value(v).ok()))
 }
 
 /// Size and XXH3-64 of a file, read through a memory map (the checksum runs at memory speed).
