@@ -79,6 +79,14 @@ pub enum Error {
     )]
     Unsupported { path: PathBuf, format: &'static str },
 
+    /// The input is neither text nor a format plumb knows by its magic bytes.
+    #[error(
+        "{path}: the input looks binary and is not a compression or format plumb knows (first \
+         bytes: {first_bytes}); expected an edge list or Matrix Market text, plain, zstd or \
+         gzip, or a plumb store file"
+    )]
+    Binary { path: PathBuf, first_bytes: String },
+
     #[error("{path}: {pos}: Matrix Market: {problem}")]
     MatrixMarket {
         path: PathBuf,

@@ -189,3 +189,99 @@ fn comparison_rows_say_what_each_difference_means() {
         assert_ne!(before, after, "{line}");
     }
 }
+
+#[test]
+fn binary_input_is_named_as_such_with_its_first_bytes() {
+    let dir = tempfile::tempdir().unwrap();
+    let path = dir.path().join("export.bin");
+    // Seeded pseudo-random bytes (a 64-bit LCG, Knuth's MMIX constants): not text, no magic.
+    let mut x = 0x2545_f491_4f6c_dd1du64;
+    let bytes: Vec<u8> = (0..5000)
+        .map(|_| {
+            x = x
+                .wrapping_mul(6_364_136_223_846_793_005)
+                .wrapping_add(1_442_695_040_888_963_407);
+            (x >> 56) as u8
+        })
+        .collect();
+    std::fs::write(&path, &bytes).unwrap();
+    let out = plumb(&["intake", path.to_str().unwrap()]);
+    assert_eq!(out.status.code(), Some(3));
+    let e = err(&out);
+    assert!(e.contains("looks binary"), "{e}");
+    assert!(!e.contains("control character"), "{e}");
+    let hex: Vec<String> = bytes[..4].iter().map(|b| format!("{b:02x}")).collect();
+    assert!(e.contains(&hex.join(" ")), "{e}");
+    // A text file with one stray control byte still gets its line and byte offset.
+    std::fs::write(&path, b"1 2\n2 3\n3 4\x01\n4 5\n5 6\n6 7\n7 8\n8 9\n9 10\n").unwrap();
+    let out = plumb(&["intake", path.to_str().unwrap()]);
+    assert!(err(&out).contains("line 3"), "{}", err(&out));
+}
+
+#[test]
+fn an_integer_beyond_64_bits_that_turns_ids_to_text_is_reported() {
+    let dir = tempfile::tempdir().unwrap();
+    let path = dir.path().join("ids.tsv");
+    std::fs::write(&path, "1 2\n2 3\n007 3\n# note\n18446744073709551616 1\n").unwrap();
+    let out = plumb(&["intake", path.to_str().unwrap()]);
+    let t = text(&out);
+    assert!(
+        t.contains("\"18446744073709551616\" on line 5 is an integer beyond 2^64-1"),
+        "{t}"
+    );
+    let out = plumb(&["intake", path.to_str().unwrap(), "--json", "-"]);
+    let v: serde_json::Value = serde_json::from_slice(&out.stdout).unwrap();
+    let f = &v["intake"]["first_text_id"];
+    assert_eq!(f["id"], "18446744073709551616");
+    assert_eq!(f["line"], 5);
+    assert_eq!(f["integer_too_large"], true);
+    // Integer ids carry no such entry.
+    std::fs::write(&path, "1 2\n2 3\n").unwrap();
+    let out = plumb(&["intake", path.to_str().unwrap(), "--json", "-"]);
+    let v: serde_json::Value = serde_json::from_slice(&out.stdout).unwrap();
+    assert!(v["intake"].get("first_text_id").is_none());
+}
+
+#[test]
+fn report_names_and_markers_are_our_own() {
+    let out = plumb(&["profile", KARATE, "--json", "-"]);
+    let v: serde_json::Value = serde_json::from_slice(&out.stdout).unwrap();
+    let c = &v["profile"]["small_world"]["coefficients"][0];
+    assert!(c.get("compared_with").is_some(), "{c}");
+    assert!(c.get("random_reference").is_none(), "{c}");
+    // In the reference chart, the graph (circle) and the ring lattice (triangle: a path of
+    // three points) have different marker shapes.
+    let out = plumb(&["profile", KARATE, "--html", "-"]);
+    let page = text(&out);
+    let start = page.find("id=\"small-world-plane\"").unwrap();
+    let chart = &page[start..start + page[start..].find("</svg>").unwrap()];
+    assert!(chart.contains("<circle"), "{chart}");
+    let triangles = chart
+        .split("<path d=\"M")
+        .skip(1)
+        .filter(|p| p.split('Z').next().unwrap().matches('L').count() == 2)
+        .count();
+    assert!(triangles >= 1, "{chart}");
+}
+
+#[test]
+fn the_trend_page_names_the_history_by_its_folder() {
+    let dir = tempfile::tempdir().unwrap();
+    let history = dir.path().join("weekly");
+    let out = plumb(&["track", history.to_str().unwrap(), KARATE, "--label", "w1"]);
+    assert!(out.status.success(), "{}", err(&out));
+    let page = dir.path().join("trend.html");
+    let out = plumb(&[
+        "trend",
+        history.to_str().unwrap(),
+        "-o",
+        page.to_str().unwrap(),
+    ]);
+    assert!(out.status.success(), "{}", err(&out));
+    let html = std::fs::read_to_string(&page).unwrap();
+    assert!(
+        html.contains("<title>plumb trend: weekly</title>"),
+        "{html}"
+    );
+    assert!(!html.contains(&dir.path().display().to_string()));
+}

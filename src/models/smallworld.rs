@@ -108,7 +108,7 @@ pub struct Coefficients {
     /// "transitivity" or "average local clustering".
     pub clustering: String,
     /// Which reference gave C_r and L_r.
-    pub random_reference: String,
+    pub compared_with: String,
     pub sigma: Figure,
     pub omega: Figure,
     pub propensity: Figure,
@@ -408,7 +408,7 @@ pub fn compare(o: &Observed, references: Vec<Reference>, level: f64, seed: u64) 
         let v = verdicts(&sigma, &omega, &phi);
         coefficients.push(Coefficients {
             clustering: label.into(),
-            random_reference: random.name.clone(),
+            compared_with: random.name.clone(),
             sigma,
             omega,
             propensity: phi,

@@ -127,7 +127,11 @@ pub fn page(h: &History, level: f64, thresholds: &[(FigureKey, Threshold)]) -> S
     format!(
         r#"<!DOCTYPE html><html lang="en"><head><meta charset="utf-8"><meta name="viewport" content="width=device-width, initial-scale=1"><title>plumb trend: {dir}</title><style>{style}</style></head><body><main><header><h1>Structure over time <span>{dir}</span></h1><p class="meta">{n} snapshots · alerts tested at {lvl:.0}% family-wise against the previous snapshot</p></header><h2>Alerts</h2><ul>{alert_list}</ul><h2>Figures</h2><div class="charts">{charts}</div><footer>Written by plumb {v}.</footer></main></body></html>
 "#,
-        dir = esc(&h.dir.display().to_string()),
+        // The folder's own name: a page is shared beyond the machine whose path it was.
+        dir = esc(&h.dir.file_name().map_or_else(
+            || h.dir.display().to_string(),
+            |n| n.to_string_lossy().into_owned()
+        )),
         style = crate::output::html::STYLE,
         n = snaps.len(),
         lvl = 100.0 * level,

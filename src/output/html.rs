@@ -49,11 +49,7 @@ footer { margin-top: 30px; color: var(--soft); font-size: 12px; }
 "#;
 
 fn number(v: f64, places: usize) -> String {
-    if v != 0.0 && (v.abs() >= 1e7 || v.abs() < 1e-4) {
-        format!("{v:.4e}")
-    } else {
-        format!("{v:.places$}")
-    }
+    crate::output::number::decimal(v, places)
 }
 
 /// A figure's value and interval as table cells: value, interval, method.
@@ -325,7 +321,7 @@ pub fn page(r: &Report) -> String {
                 pick("random with the same degrees"),
                 Mark::Diamond,
             ),
-            ("ring lattice", pick("ring lattice"), Mark::Circle),
+            ("ring lattice", pick("ring lattice"), Mark::Triangle),
         ] {
             if let Some(r) = r
                 && let (Some(t), Some(l)) = (&r.transitivity, &r.mean_distance)
@@ -501,7 +497,7 @@ pub fn page(r: &Report) -> String {
                 out,
                 "<p class=\"verdict\"><strong>With {} against {}:</strong> {}.</p>",
                 esc(&c.clustering),
-                esc(&c.random_reference),
+                esc(&c.compared_with),
                 esc(&c.verdicts.join("; "))
             );
         }

@@ -122,6 +122,7 @@ pub enum Mark {
     Circle,
     Square,
     Diamond,
+    Triangle,
 }
 
 /// A data point with an optional interval on y.
@@ -199,6 +200,15 @@ fn marker(out: &mut String, mark: Mark, x: f64, y: f64) {
             x + 4.5,
             y + 4.5,
             x - 4.5
+        ),
+        Mark::Triangle => write!(
+            out,
+            r#"<path d="M{x:.1} {:.1}L{:.1} {:.1}L{:.1} {:.1}Z"/>"#,
+            y - 4.5,
+            x + 4.5,
+            y + 3.5,
+            x - 4.5,
+            y + 3.5
         ),
     };
 }

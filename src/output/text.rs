@@ -86,6 +86,23 @@ pub fn intake_text(g: &Graph, command: &str) -> String {
         ),
         None => row(&mut out, "read", read),
     }
+    if let Some(f) = &i.first_text_id {
+        let why = if f.integer_too_large {
+            format!(
+                "{:?} on line {} is an integer beyond 2^64-1, so every id is read as text \
+                 (007 and 7 are then different nodes)",
+                f.id,
+                count(f.line)
+            )
+        } else {
+            format!(
+                "text because of {:?} on line {}, the first id that is not an integer",
+                f.id,
+                count(f.line)
+            )
+        };
+        row(&mut out, "ids", why);
+    }
     let mut lines = format!(
         "{} = {} edge lines + {} comment + {} blank",
         count(i.lines),
@@ -519,7 +536,7 @@ fn small_world_text(out: &mut String, sw: &crate::models::smallworld::SmallWorld
         row(
             out,
             "with",
-            format!("{} against {}:", c.clustering, c.random_reference),
+            format!("{} against {}:", c.clustering, c.compared_with),
         );
         row(out, "sigma", fig(&c.sigma, 3));
         row(out, "omega", fig(&c.omega, 3));
@@ -712,9 +729,13 @@ fn change_row(out: &mut String, c: &crate::monitor::drift::Change, level: f64) {
                 100.0 * level
             ),
         ),
+        Verdict::Alert if diff.is_exact() => ("ALERT", format!("beyond the minimum effect {min}")),
         Verdict::Alert => (
             "ALERT",
-            format!("beyond the minimum effect {min} and significant"),
+            format!(
+                "beyond the minimum effect {min} and significant at {:.0}%",
+                100.0 * level
+            ),
         ),
     };
     let text = if c.verdict == Verdict::Same {

@@ -28,6 +28,9 @@ pub enum Sniffed {
     Store,
     /// A compression plumb does not read, by name.
     Unsupported(&'static str),
+    /// Not text and no format plumb knows: many control bytes, or bytes that are not UTF-8
+    /// beside control bytes, in the first few KiB.
+    Binary,
 }
 
 /// Classify an input by its magic bytes.
@@ -58,7 +61,43 @@ pub fn sniff(data: &[u8]) -> Sniffed {
     if starts(&magic::ZIP) {
         return Sniffed::Unsupported("zip");
     }
+    if looks_binary(data) {
+        return Sniffed::Binary;
+    }
     Sniffed::Text
+}
+
+/// Bytes sampled from the start of an input to tell text from binary.
+const SAMPLE: usize = 4096;
+
+/// Whether the start of `data` is binary rather than text with a stray bad byte: any control
+/// byte (other than tab, line feed, carriage return and form feed) in a sample that is not
+/// UTF-8, or over a quarter control bytes in one that is. Short inputs are always treated as text, so a bad line in a tiny
+/// file is still reported by line and byte offset.
+fn looks_binary(data: &[u8]) -> bool {
+    let sample = &data[..data.len().min(SAMPLE)];
+    if sample.len() < 32 {
+        return false;
+    }
+    let control = sample
+        .iter()
+        .filter(|&&b| (b < 0x20 && !b"\t\n\r\x0c".contains(&b)) || b == 0x7f)
+        .count();
+    let utf8 = match std::str::from_utf8(sample) {
+        Ok(_) => true,
+        // A character cut by the sample's end is not evidence of binary.
+        Err(e) => e.error_len().is_none(),
+    };
+    control * 4 > sample.len() || (control > 0 && !utf8)
+}
+
+/// The first bytes of `data` in hex, for messages about inputs that are not text.
+pub fn hex_head(data: &[u8]) -> String {
+    data.iter()
+        .take(16)
+        .map(|b| format!("{b:02x}"))
+        .collect::<Vec<_>>()
+        .join(" ")
 }
 
 /// The bytes of one input, mapped or read, never modified.

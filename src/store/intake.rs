@@ -77,7 +77,24 @@ pub struct Intake {
     /// Nodes left without edges (for example ones seen only in self-loops).
     pub isolated_nodes: u64,
     pub id_kind: IdKind,
+    /// With text ids: the first id that made them text (absent for integer ids).
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub first_text_id: Option<FirstTextId>,
     pub stages: Vec<Stage>,
+}
+
+/// The first id that is not an integer up to 2^64-1, which makes every id of the file text (so
+/// `007` and `7` are then different nodes).
+#[derive(Debug, Clone, PartialEq, Eq, Serialize, Deserialize, schemars::JsonSchema)]
+pub struct FirstTextId {
+    /// The id as written (cut at 60 characters).
+    pub id: String,
+    /// Its line, from 1.
+    pub line: u64,
+    /// Byte offset of the id (in the decompressed text for compressed input).
+    pub byte: u64,
+    /// Whether it is all digits, an integer beyond 2^64-1.
+    pub integer_too_large: bool,
 }
 
 impl Intake {
@@ -106,6 +123,7 @@ impl Intake {
             edges,
             isolated_nodes,
             id_kind: IdKind::Integer,
+            first_text_id: None,
             stages: Vec::new(),
         }
     }

@@ -12,7 +12,7 @@ use std::time::Instant;
 
 use rayon::prelude::*;
 
-use crate::error::{Error, Position, Result};
+use crate::error::{Error, Position, Result, excerpt};
 use crate::progress::{Progress, Unit};
 use crate::read::edgeline::{self, Line};
 use crate::read::mtx::{self, Header as MtxHeader};
@@ -22,7 +22,7 @@ use crate::read::source::{self, Compression, InputBytes, Sniffed, StreamFault};
 use crate::store::fill::Filler;
 use crate::store::graph::{Graph, NodeIds};
 use crate::store::ids::{self, IndexFault, IntIndex, IntTally, TextIndex, TextTally};
-use crate::store::intake::{BadLine, IdKind, InputFormat, Intake, Stage};
+use crate::store::intake::{BadLine, FirstTextId, IdKind, InputFormat, Intake, Stage};
 
 /// Which grammar to read the input with.
 #[derive(Debug, Clone, Copy, PartialEq, Eq, Default)]
@@ -91,6 +91,12 @@ pub fn load_input(input: InputBytes, opts: &LoadOptions, progress: &dyn Progress
                 format,
             });
         }
+        Sniffed::Binary => {
+            return Err(Error::Binary {
+                path: input.path.clone(),
+                first_bytes: source::hex_head(input.bytes()),
+            });
+        }
         Sniffed::Text => Compression::None,
         Sniffed::Compressed(c) => c,
     };
@@ -129,6 +135,8 @@ struct Loader<'a> {
     threads: usize,
     stages: Vec<Stage>,
     clock: Instant,
+    /// Why the ids are text: the first id that is not an integer up to 2^64-1.
+    first_text_id: Option<FirstTextId>,
 }
 
 /// What the first pass over the text found.
@@ -242,6 +250,7 @@ impl<'a> Loader<'a> {
             threads,
             stages: Vec::new(),
             clock: Instant::now(),
+            first_text_id: None,
         })
     }
 
@@ -403,20 +412,40 @@ impl<'a> Loader<'a> {
             self.src,
             self.threads,
             self.progress,
-            || (TextTally::default(), Vec::new()),
-            |(t, outcomes), i, bytes, base| {
+            || (TextTally::default(), Vec::new(), Vec::new()),
+            |(t, outcomes, firsts), i, bytes, base| {
+                let mut first = None;
                 let o = scan::scan_chunk(i, bytes, base, &rules, |a, b| {
+                    if first.is_none()
+                        && let Some(tok) = [a, b].into_iter().find(|t| t.int.is_none())
+                    {
+                        first =
+                            Some((tok.raw.as_ptr() as usize - bytes.as_ptr() as usize, tok.raw));
+                    }
                     t.edge(a.raw, b.raw);
                     true
                 });
+                if let Some((at, raw)) = first {
+                    // Lines of this piece before the id (0-based), counted once per piece.
+                    let line = memchr::memchr_iter(b'\n', &bytes[..at]).count() as u64;
+                    firsts.push((i, line, base + at as u64, excerpt(raw)));
+                }
                 let go_on = o.error.is_none();
                 outcomes.push(o);
                 go_on
             },
         )
         .map_err(|f| self.stream_fault(f, &[]))?;
-        let (tallies, outcomes): (Vec<_>, Vec<_>) = states.into_iter().unzip();
-        let scanned = self.check(outcomes.into_iter().flatten().collect(), info)?;
+        let mut tallies = Vec::new();
+        let mut outcomes = Vec::new();
+        let mut firsts = Vec::new();
+        for (t, o, f) in states {
+            tallies.push(t);
+            outcomes.extend(o);
+            firsts.extend(f);
+        }
+        let scanned = self.check(outcomes, info)?;
+        self.first_text_id = self.place_first_text_id(&scanned, firsts);
         let index = TextIndex::build(tallies, self.max_nodes()).map_err(|f| self.index_fault(f))?;
         self.stage_done("index ids");
 
@@ -544,9 +573,33 @@ impl<'a> Loader<'a> {
             edges: m,
             isolated_nodes: isolated,
             id_kind,
+            first_text_id: self.first_text_id.take(),
             stages: std::mem::take(&mut self.stages),
         };
         Ok(Graph { csr, ids, intake })
+    }
+
+    /// The earliest of the pieces' first text ids, with its line in the whole text.
+    fn place_first_text_id(
+        &self,
+        scanned: &Scanned,
+        mut firsts: Vec<(usize, u64, u64, String)>,
+    ) -> Option<FirstTextId> {
+        firsts.sort_by_key(|f| f.0);
+        let (piece, line, byte, id) = firsts.into_iter().next()?;
+        let before: u64 = scanned
+            .outcomes
+            .iter()
+            .filter(|o| o.index < piece)
+            .map(|o| o.counts.lines)
+            .sum();
+        let header = self.mtx.as_ref().map_or(0, |h| h.lines_before_body);
+        Some(FirstTextId {
+            integer_too_large: id.bytes().all(|c| c.is_ascii_digit()),
+            id,
+            line: header + before + line + 1,
+            byte,
+        })
     }
 
     /// Order outcomes, turn the first error into a positioned message, check Matrix Market
