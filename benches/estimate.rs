@@ -42,16 +42,16 @@ fn main() {
     let t = Instant::now();
     let e = wedges::estimate(&g, samples, 0.95, 1);
     let t_wedge = t.elapsed().as_secs_f64();
-    let iv = e.transitivity.interval.unwrap();
+    let iv = e.transitivity.interval().unwrap();
     assert!(
-        (e.transitivity.value - exact).abs() <= 0.002,
+        (e.transitivity.value() - exact).abs() <= 0.002,
         "missed ±0.002"
     );
     assert!(iv.high - iv.low <= 0.004);
     println!(
         "transitivity: exact {exact:.6} in {t_exact:.2} s; wedge sampling {:.6} ± {:.6} \
          ({samples} wedges) in {t_wedge:.3} s",
-        e.transitivity.value,
+        e.transitivity.value(),
         (iv.high - iv.low) / 2.0
     );
 
@@ -59,16 +59,16 @@ fn main() {
     let t = Instant::now();
     let d = distance::estimate_to_precision(&g, 0.01, 0.95, 4096, 1);
     let t_dist = t.elapsed().as_secs_f64();
-    let iv = d.mean.interval.unwrap();
-    let half = (iv.high - iv.low) / 2.0 / d.mean.value;
+    let iv = d.mean.interval().unwrap();
+    let half = (iv.high - iv.low) / 2.0 / d.mean.value();
     assert!(half <= 0.01, "interval half-width {half} over 1%");
     println!(
         "mean distance: {:.4} ± {:.2}% from {} sources in {t_dist:.1} s \
          (effective diameter {:.3})",
-        d.mean.value,
+        d.mean.value(),
         100.0 * half,
         d.sources,
-        d.effective_diameter.value
+        d.effective_diameter.value()
     );
 
     // HyperBall: time every round of one run; report the first (all counters active) and the
@@ -94,7 +94,7 @@ fn main() {
         ball.mean
     );
     assert!(
-        (ball.mean - d.mean.value).abs() < 0.1 * d.mean.value,
+        (ball.mean - d.mean.value()).abs() < 0.1 * d.mean.value(),
         "HyperBall and sampled sources disagree"
     );
 

@@ -92,7 +92,9 @@ fn main() {
             "full profile with small-world verdict, Watts-Strogatz n={n} k=10 p=0.1 ({m} edges), \
              {references} sampled references of each kind: {secs:.1} s after load \
              (sigma {:.0}, omega {:.3}, propensity {:.3})",
-            c.sigma.value, c.omega.value, c.propensity.value
+            c.sigma.value(),
+            c.omega.value(),
+            c.propensity.value()
         );
         let stages: Vec<String> = p
             .stages

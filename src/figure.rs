@@ -26,15 +26,48 @@ pub struct Interval {
     pub level: f64,
 }
 
+/// One reported figure: its value, how it was obtained, on how much data, and for estimates its
+/// standard error and interval. The fields are private and the constructors are the only way to
+/// make one, so an estimate without an interval cannot exist.
+///
+/// ```
+/// use plumb::figure::{Figure, Interval};
+/// let t = Figure::estimate(
+///     0.25,
+///     "wedge sampling",
+///     18_445,
+///     0.001,
+///     Interval { low: 0.248, high: 0.252, level: 0.95 },
+/// );
+/// assert!(t.is_estimate() && t.interval().is_some());
+/// assert_eq!(Figure::exact(45.0, "forward triangle listing").interval(), None);
+/// ```
+///
+/// A figure cannot be assembled field by field:
+///
+/// ```compile_fail
+/// use plumb::figure::{Figure, Method};
+/// let f = Figure {
+///     value: 0.25,
+///     method: Method::Estimate { estimator: "guess".into() },
+///     sample_size: None,
+///     std_error: None,
+///     interval: None,
+/// };
+/// ```
 #[derive(Debug, Clone, PartialEq, Serialize, Deserialize, schemars::JsonSchema)]
 pub struct Figure {
-    pub value: f64,
-    pub method: Method,
+    /// The value (for bounds: the lower bound).
+    value: f64,
+    /// How it was obtained.
+    method: Method,
     /// Units of work behind the figure: samples, sources, registers; for exact figures the
     /// number of items it ranges over (nodes, pairs).
-    pub sample_size: Option<u64>,
-    pub std_error: Option<f64>,
-    pub interval: Option<Interval>,
+    sample_size: Option<u64>,
+    /// Standard error of an estimate.
+    std_error: Option<f64>,
+    /// Confidence interval of an estimate (level < 1), or certain bounds (level 1).
+    interval: Option<Interval>,
 }
 
 impl Figure {
@@ -95,7 +128,59 @@ impl Figure {
         }
     }
 
+    /// Whether the figure was computed exactly.
     pub fn is_exact(&self) -> bool {
         matches!(self.method, Method::Exact { .. })
+    }
+
+    /// Whether the figure is an estimate (with an interval).
+    pub fn is_estimate(&self) -> bool {
+        matches!(self.method, Method::Estimate { .. })
+    }
+
+    /// The value (for bounds: the lower bound).
+    pub fn value(&self) -> f64 {
+        self.value
+    }
+
+    /// How the figure was obtained.
+    pub fn method(&self) -> &Method {
+        &self.method
+    }
+
+    /// Units of work behind the figure, when counted.
+    pub fn sample_size(&self) -> Option<u64> {
+        self.sample_size
+    }
+
+    /// Standard error, for estimates.
+    pub fn std_error(&self) -> Option<f64> {
+        self.std_error
+    }
+
+    /// The interval: a confidence interval for estimates, certain bounds for bounds.
+    pub fn interval(&self) -> Option<Interval> {
+        self.interval
+    }
+
+    /// The interval of an estimate only (none for exact figures and bounds).
+    pub fn estimate_interval(&self) -> Option<Interval> {
+        self.interval.filter(|_| self.is_estimate())
+    }
+
+    /// The same figure in units `by` times larger (value, standard error and interval divided
+    /// by `by`); the method and sample size stay.
+    pub fn scaled(&self, by: f64) -> Figure {
+        Figure {
+            value: self.value / by,
+            method: self.method.clone(),
+            sample_size: self.sample_size,
+            std_error: self.std_error.map(|s| s / by),
+            interval: self.interval.map(|iv| Interval {
+                low: iv.low / by,
+                high: iv.high / by,
+                level: iv.level,
+            }),
+        }
     }
 }

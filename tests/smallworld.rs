@@ -39,8 +39,8 @@ fn coefficients<'a>(p: &'a Profile, clustering: &str) -> &'a Coefficients {
 }
 
 fn span(f: &plumb::figure::Figure) -> (f64, f64) {
-    f.interval
-        .map_or((f.value, f.value), |iv| (iv.low, iv.high))
+    f.interval()
+        .map_or((f.value(), f.value()), |iv| (iv.low, iv.high))
 }
 
 fn transitivity(g: &Csr) -> f64 {
@@ -106,7 +106,7 @@ fn fronczak_formula_matches_simulation_within_two_percent() {
         let ap = plumb::exact::distances::all_pairs(&sub);
         let l = plumb::exact::distances::DistanceStats::from_all_pairs(&ap, "", 0)
             .mean
-            .value;
+            .value();
         let f = smallworld::er_mean_distance(n as f64, 10.0);
         println!("G(10^4, 5x10^4) seed {seed}: exact L {l:.4}, Fronczak {f:.4}");
         assert!((l / f - 1.0).abs() < 0.02, "{l} vs {f}");
@@ -131,10 +131,10 @@ fn sigma_is_about_one_for_random_graphs() {
             let (lo, hi) = span(&c.sigma);
             println!(
                 "G(n,m) seed {seed} {kind}: sigma {:.3} [{lo:.3}, {hi:.3}]",
-                c.sigma.value
+                c.sigma.value()
             );
             contains += (lo <= 1.0 && 1.0 <= hi) as u32;
-            sum += c.sigma.value;
+            sum += c.sigma.value();
         }
         assert!(contains >= 4, "{kind}: {contains} of 5");
         assert!((sum / 5.0 - 1.0).abs() < 0.15, "{kind}: mean {}", sum / 5.0);
@@ -147,9 +147,9 @@ fn omega_is_about_minus_one_for_a_ring_lattice() {
     let g = graph(generate::ring_lattice(2000, 10));
     let p = prof(&g, 0);
     let c = coefficients(&p, "transitivity");
-    println!("ring lattice: omega {:.4}", c.omega.value);
+    println!("ring lattice: omega {:.4}", c.omega.value());
     assert!(
-        c.omega.value < -0.9 && c.omega.value > -1.0,
+        c.omega.value() < -0.9 && c.omega.value() > -1.0,
         "{:?}",
         c.omega
     );
@@ -169,7 +169,9 @@ fn watts_strogatz_small_world_regime_is_recognised() {
         let (f_lo, _) = span(&c.propensity);
         println!(
             "WS p={p}: sigma {:.2} (low {s_lo:.2}), omega {:.3} [{o_lo:.3}, {o_hi:.3}], propensity {:.3}",
-            c.sigma.value, c.omega.value, c.propensity.value
+            c.sigma.value(),
+            c.omega.value(),
+            c.propensity.value()
         );
         assert!(s_lo > 2.0, "sigma clearly above 1");
         assert!(f_lo > 0.6, "propensity above its 0.6 threshold");
@@ -178,7 +180,7 @@ fn watts_strogatz_small_world_regime_is_recognised() {
         } else {
             // At p = 0.01 the mean distance is still about three times the random graph's,
             // which omega reads as lattice-leaning (L_r/L ~ 0.3 against C/C_l ~ 0.97).
-            assert!(c.omega.value < 0.0);
+            assert!(c.omega.value() < 0.0);
         }
     }
 }
@@ -201,7 +203,7 @@ fn karate_club_coefficients_by_hand() {
     let c_l = 0.5;
     let l_l = 153.0 / 33.0;
     let l = match &p.distances {
-        plumb::profile::Distances::Exact(d) => d.mean.value,
+        plumb::profile::Distances::Exact(d) => d.mean.value(),
         _ => panic!("karate distances are exact"),
     };
     assert!((l - 2.408200).abs() < 5e-7);
@@ -209,7 +211,7 @@ fn karate_club_coefficients_by_hand() {
         ("transitivity", 135.0 / 528.0),
         (
             "average local clustering",
-            p.clustering.as_ref().unwrap().average_zeros.value,
+            p.clustering.as_ref().unwrap().average_zeros.value(),
         ),
     ] {
         let got = coefficients(&p, kind);
@@ -219,16 +221,16 @@ fn karate_club_coefficients_by_hand() {
         let dl = ((l - l_r) / (l_l - l_r)).clamp(0.0, 1.0);
         let phi = 1.0 - ((dc * dc + dl * dl) / 2.0).sqrt();
         println!("karate {kind}: sigma {sigma:.6} omega {omega:.6} propensity {phi:.6}");
-        assert!((got.sigma.value - sigma).abs() < 1e-9, "{kind}");
-        assert!((got.omega.value - omega).abs() < 1e-9, "{kind}");
-        assert!((got.propensity.value - phi).abs() < 1e-9, "{kind}");
+        assert!((got.sigma.value() - sigma).abs() < 1e-9, "{kind}");
+        assert!((got.omega.value() - omega).abs() < 1e-9, "{kind}");
+        assert!((got.propensity.value() - phi).abs() < 1e-9, "{kind}");
         assert!(
             got.sigma.is_exact(),
             "exact inputs and analytic references: no interval"
         );
     }
     // The published average clustering agrees with the one used above.
-    assert!((p.clustering.as_ref().unwrap().average_zeros.value - 0.570638).abs() < 5e-7);
+    assert!((p.clustering.as_ref().unwrap().average_zeros.value() - 0.570638).abs() < 5e-7);
 }
 
 #[test]

@@ -139,17 +139,17 @@ pub fn estimate_to_precision(
 
 /// Sources that make the interval half-width `relative` × mean, from a pilot figure.
 pub fn sources_for(pilot: &Figure, relative: f64, level: f64, population: u64) -> usize {
-    let (Some(se), Some(k)) = (pilot.std_error, pilot.sample_size) else {
+    let (Some(se), Some(k)) = (pilot.std_error(), pilot.sample_size()) else {
         return 0;
     };
-    if pilot.value <= 0.0 || k == 0 {
+    if pilot.value() <= 0.0 || k == 0 {
         return 0;
     }
     // Undo the pilot's finite-population correction to get the per-source spread.
     let fpc = (1.0 - k as f64 / population.max(1) as f64).max(1e-12);
     let sd = se * (k as f64 / fpc).sqrt();
     // A tenth more than the pilot asks for: the pilot's spread is itself an estimate.
-    let k0 = 1.1 * (z_for(level) * sd / (relative * pilot.value)).powi(2);
+    let k0 = 1.1 * (z_for(level) * sd / (relative * pilot.value())).powi(2);
     let k = k0 / (1.0 + k0 / population as f64);
     k.ceil() as usize
 }
@@ -294,9 +294,12 @@ mod tests {
         let e = estimate(&g, 500, 0.95, 3);
         assert_eq!(e.sampled_pairs, ap.pairs);
         let exact = crate::exact::distances::DistanceStats::from_all_pairs(&ap, "all", 0);
-        assert!((e.mean.value - exact.mean.value).abs() < 1e-12);
-        assert_eq!(e.mean.std_error, Some(0.0));
-        assert_eq!(e.effective_diameter.value, exact.effective_diameter.value);
+        assert!((e.mean.value() - exact.mean.value()).abs() < 1e-12);
+        assert_eq!(e.mean.std_error(), Some(0.0));
+        assert_eq!(
+            e.effective_diameter.value(),
+            exact.effective_diameter.value()
+        );
         let g = crate::models::generate::watts_strogatz(3000, 6, 0.1, 2);
         let one = rayon::ThreadPoolBuilder::new()
             .num_threads(1)
@@ -304,9 +307,9 @@ mod tests {
             .unwrap()
             .install(|| estimate_to_precision(&g, 0.01, 0.95, 2000, 9));
         assert_eq!(one, estimate_to_precision(&g, 0.01, 0.95, 2000, 9));
-        let iv = one.mean.interval.unwrap();
+        let iv = one.mean.interval().unwrap();
         assert!(
-            (iv.high - iv.low) / 2.0 <= 0.0101 * one.mean.value,
+            (iv.high - iv.low) / 2.0 <= 0.0101 * one.mean.value(),
             "{iv:?}"
         );
     }

@@ -320,7 +320,7 @@ mod tests {
         assert!((e / 49_999.0 - 1.0).abs() < 3.0 * sa.rse(), "{e}");
         let c = sa.churn(&sb, 0.95).unwrap();
         let inside = |f: &Figure, x: f64| {
-            let iv = f.interval.unwrap();
+            let iv = f.interval().unwrap();
             iv.low <= x && x <= iv.high
         };
         assert!(

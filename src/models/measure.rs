@@ -36,10 +36,10 @@ pub fn measure_reference(g: &Csr, opts: &Measure, seed: u64) -> (f64, f64, f64) 
         let tri = triangles::count(g);
         let local = clustering::local(g, &tri);
         let s = clustering::stats(g, &tri, &local);
-        (s.transitivity.value, s.average_zeros.value)
+        (s.transitivity.value(), s.average_zeros.value())
     } else {
         let s = wedges::sampled_stats(g, opts.clustering_tolerance, 1.0, opts.level, seed);
-        (s.transitivity.value, s.average_zeros.value)
+        (s.transitivity.value(), s.average_zeros.value())
     };
     let comps = components::components(g);
     let sub = components::induced(g, &comps.giant_nodes());
@@ -54,7 +54,7 @@ pub fn measure_reference(g: &Csr, opts: &Measure, seed: u64) -> (f64, f64, f64) 
     // estimate serves unless exact is nearly free.
     let l = if ap_secs <= 0.05 * opts.exact_seconds {
         let ap = distances::all_pairs(&sub);
-        DistanceStats::from_all_pairs(&ap, "", 0).mean.value
+        DistanceStats::from_all_pairs(&ap, "", 0).mean.value()
     } else {
         sampled::estimate_to_precision(
             &sub,
@@ -64,7 +64,7 @@ pub fn measure_reference(g: &Csr, opts: &Measure, seed: u64) -> (f64, f64, f64) 
             seed,
         )
         .mean
-        .value
+        .value()
     };
     (t, c, l)
 }

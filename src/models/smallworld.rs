@@ -232,8 +232,8 @@ struct Input {
 
 fn ve(f: &Figure, graphs: Option<u64>) -> Input {
     Input {
-        value: f.value,
-        se: f.std_error.unwrap_or(0.0),
+        value: f.value(),
+        se: f.std_error().unwrap_or(0.0),
         df: graphs.filter(|&g| g > 1).map(|g| g - 1),
     }
 }
@@ -306,9 +306,9 @@ fn propagate(
 }
 
 fn verdicts(sigma: &Figure, omega: &Figure, phi: &Figure) -> Vec<String> {
-    let span = |f: &Figure| match f.interval {
+    let span = |f: &Figure| match f.interval() {
         Some(iv) => (iv.low, iv.high),
-        None => (f.value, f.value),
+        None => (f.value(), f.value()),
     };
     let mut out = Vec::new();
     let (lo, hi) = span(sigma);
@@ -446,7 +446,7 @@ mod tests {
         let g = crate::models::generate::ring_lattice(999, 6);
         let ap = crate::exact::distances::all_pairs(&g);
         let s = crate::exact::distances::DistanceStats::from_all_pairs(&ap, "all", 0);
-        assert!((lattice_mean_distance(999, 6) - s.mean.value).abs() < 1e-9);
+        assert!((lattice_mean_distance(999, 6) - s.mean.value()).abs() < 1e-9);
         assert_eq!(lattice_degree(4.588, 34), 4);
         assert_eq!(lattice_degree(1.2, 34), 2);
         assert_eq!(lattice_clustering(10), 2.0 / 3.0);

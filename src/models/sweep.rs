@@ -57,18 +57,6 @@ fn mean_of(values: &[f64], level: f64, what: &str) -> Figure {
     )
 }
 
-fn scaled(f: &Figure, by: f64) -> Figure {
-    let mut g = f.clone();
-    g.value /= by;
-    g.std_error = g.std_error.map(|s| s / by);
-    g.interval = g.interval.map(|iv| Interval {
-        low: iv.low / by,
-        high: iv.high / by,
-        level: iv.level,
-    });
-    g
-}
-
 /// Sweep `ps` with `graphs` seeded graphs each; `row_done` is told after each p.
 pub fn watts_strogatz(
     n: u32,
@@ -105,8 +93,8 @@ pub fn watts_strogatz(
         let row = SweepRow {
             p,
             graphs: graphs as u64,
-            clustering_ratio: scaled(&clustering, c0),
-            distance_ratio: scaled(&mean_distance, l0),
+            clustering_ratio: Figure::scaled(&clustering, c0),
+            distance_ratio: Figure::scaled(&mean_distance, l0),
             clustering,
             mean_distance,
         };
@@ -133,10 +121,10 @@ mod tests {
         let opts = crate::profile::ProfileOptions::default().measure();
         let s = watts_strogatz(1000, 10, &[0.0, 0.01, 1.0], 2, &opts, 1, &mut |_| {}).unwrap();
         let r = &s.rows;
-        assert!((r[0].clustering_ratio.value - 1.0).abs() < 1e-12);
-        assert!((r[0].distance_ratio.value - 1.0).abs() < 1e-9);
-        assert!(r[1].clustering_ratio.value > 0.9 && r[1].distance_ratio.value < 0.4);
-        assert!(r[2].clustering_ratio.value < 0.05 && r[2].distance_ratio.value < 0.1);
+        assert!((r[0].clustering_ratio.value() - 1.0).abs() < 1e-12);
+        assert!((r[0].distance_ratio.value() - 1.0).abs() < 1e-9);
+        assert!(r[1].clustering_ratio.value() > 0.9 && r[1].distance_ratio.value() < 0.4);
+        assert!(r[2].clustering_ratio.value() < 0.05 && r[2].distance_ratio.value() < 0.1);
         assert!(watts_strogatz(1000, 10, &[1.5], 1, &opts, 1, &mut |_| {}).is_err());
     }
 }

@@ -233,7 +233,7 @@ pub fn compare(
         .iter()
         .filter_map(|(k, x)| fb.iter().find(|(j, _)| j == k).map(|(_, y)| (*k, x, y)))
         .collect();
-    let se = |f: &Figure| f.std_error.unwrap_or(0.0);
+    let se = |f: &Figure| f.std_error().unwrap_or(0.0);
     let tested = pairs
         .iter()
         .filter(|(_, x, y)| se(x) > 0.0 || se(y) > 0.0)
@@ -247,7 +247,7 @@ pub fn compare(
             .iter()
             .find(|(k, _)| *k == key)
             .map_or(key.default_threshold(), |(_, t)| *t);
-        let diff = y.value - x.value;
+        let diff = y.value() - x.value();
         let s = (se(x).powi(2) + se(y).powi(2)).sqrt();
         let significant = if s > 0.0 {
             diff.abs() > z * s
@@ -269,7 +269,7 @@ pub fn compare(
         } else {
             Figure::exact(diff, "difference of exact figures")
         };
-        let beyond = threshold.met(x.value, diff);
+        let beyond = threshold.met(x.value(), diff);
         let alert = significant && beyond;
         let verdict = match (diff == 0.0, beyond, significant) {
             (true, _, _) => Verdict::Same,
@@ -280,8 +280,8 @@ pub fn compare(
         changes.push(Change {
             key,
             label: key.label().into(),
-            before: x.value,
-            after: y.value,
+            before: x.value(),
+            after: y.value(),
             difference,
             significant,
             threshold,

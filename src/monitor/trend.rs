@@ -53,8 +53,8 @@ pub fn page(h: &History, level: f64, thresholds: &[(FigureKey, Threshold)]) -> S
             if let Some((_, f)) = figures_of(r).into_iter().find(|(k, _)| *k == key) {
                 let p = Point {
                     x: i as f64 + 1.0,
-                    y: f.value,
-                    interval: match (&f.method, f.interval) {
+                    y: f.value(),
+                    interval: match (&f.method(), f.interval()) {
                         (crate::figure::Method::Estimate { .. }, Some(iv)) => {
                             Some((iv.low, iv.high))
                         }

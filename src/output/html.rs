@@ -54,8 +54,8 @@ fn number(v: f64, places: usize) -> String {
 
 /// A figure's value and interval as table cells: value, interval, method.
 fn cells(f: &Figure, places: usize) -> (String, String, String) {
-    let value = number(f.value, places);
-    let (interval, how) = match (&f.method, &f.interval) {
+    let value = number(f.value(), places);
+    let (interval, how) = match (&f.method(), &f.interval()) {
         (Method::Estimate { estimator }, Some(iv)) => (
             format!(
                 "{}–{} ({:.0}%)",
@@ -65,7 +65,7 @@ fn cells(f: &Figure, places: usize) -> (String, String, String) {
             ),
             format!(
                 "estimate: {estimator}{}",
-                f.sample_size
+                f.sample_size()
                     .map_or(String::new(), |k| format!("; sample {k}"))
             ),
         ),
@@ -86,8 +86,8 @@ fn cells(f: &Figure, places: usize) -> (String, String, String) {
 fn point(x: f64, f: &Figure) -> Point {
     Point {
         x,
-        y: f.value,
-        interval: match (&f.method, f.interval) {
+        y: f.value(),
+        interval: match (&f.method(), f.interval()) {
             (Method::Estimate { .. }, Some(iv)) => Some((iv.low, iv.high)),
             _ => None,
         },
@@ -305,8 +305,8 @@ pub fn page(r: &Report) -> String {
                 mark: Mark::Circle,
                 line: false,
                 points: vec![Point {
-                    x: l.value,
-                    y: c.transitivity.value,
+                    x: l.value(),
+                    y: c.transitivity.value(),
                     interval: point(0.0, &c.transitivity).interval,
                 }],
             });
@@ -331,8 +331,8 @@ pub fn page(r: &Report) -> String {
                     mark,
                     line: false,
                     points: vec![Point {
-                        x: l.value,
-                        y: t.value,
+                        x: l.value(),
+                        y: t.value(),
                         interval: point(0.0, t).interval,
                     }],
                 });

@@ -234,12 +234,12 @@ fn wrap(text: &str, width: usize) -> Vec<String> {
 
 /// A figure as text: exact ones as the value; estimates with their half-width and interval.
 fn fig(f: &Figure, places: usize) -> String {
-    match (&f.method, &f.interval) {
+    match (&f.method(), &f.interval()) {
         (Method::Estimate { .. }, Some(iv)) => {
             let half = ((iv.high - iv.low) / 2.0).abs();
             format!(
                 "{} ± {} ({:.0}%: {}–{})",
-                fixed(f.value, places),
+                fixed(f.value(), places),
                 fixed(half, places),
                 100.0 * iv.level,
                 fixed(iv.low, places),
@@ -251,7 +251,7 @@ fn fig(f: &Figure, places: usize) -> String {
             fixed(iv.low, places),
             fixed(iv.high, places)
         ),
-        _ => fixed(f.value, places),
+        _ => fixed(f.value(), places),
     }
 }
 
@@ -342,9 +342,9 @@ fn clustering_text(out: &mut String, k: &crate::exact::clustering::ClusteringSta
             "triangles",
             format!(
                 "{} · wedges {} · transitivity {}",
-                count(k.triangles.value as u64),
+                count(k.triangles.value() as u64),
                 u64::try_from(k.wedges).map_or(k.wedges.to_string(), count),
-                fixed(k.transitivity.value, 6)
+                fixed(k.transitivity.value(), 6)
             ),
         );
     } else {
@@ -362,7 +362,7 @@ fn clustering_text(out: &mut String, k: &crate::exact::clustering::ClusteringSta
             "",
             format!(
                 "from {} sampled wedges of {}",
-                count(k.transitivity.sample_size.unwrap_or(0)),
+                count(k.transitivity.sample_size().unwrap_or(0)),
                 u64::try_from(k.wedges).map_or(k.wedges.to_string(), count),
             ),
         );
@@ -387,15 +387,15 @@ fn clustering_text(out: &mut String, k: &crate::exact::clustering::ClusteringSta
     let ck: Vec<String> = k
         .by_degree
         .iter()
-        .map(|b| match &b.mean.interval {
+        .map(|b| match &b.mean.interval() {
             Some(iv) if !b.mean.is_exact() => format!(
                 "{}–{}: {:.3}±{:.3}",
                 b.low,
                 b.high,
-                b.mean.value,
+                b.mean.value(),
                 (iv.high - iv.low) / 2.0
             ),
-            _ => format!("{}–{}: {:.3}", b.low, b.high, b.mean.value),
+            _ => format!("{}–{}: {:.3}", b.low, b.high, b.mean.value()),
         })
         .collect();
     row(out, "C(k)", ck.join(" · "));
@@ -408,7 +408,7 @@ fn distance_text(out: &mut String, p: &Profile) {
 
     if let Some(dm) = &p.diameter {
         let f = &dm.diameter;
-        let text = match (&f.method, &f.interval) {
+        let text = match (&f.method(), &f.interval()) {
             (Method::Bounds { .. }, Some(iv)) => format!(
                 "between {} and {} for certain (double-sweep bound, then iFUB stopped at the \
                  --diameter-within budget after {} BFS runs)",
@@ -418,13 +418,14 @@ fn distance_text(out: &mut String, p: &Profile) {
             ),
             (Method::Exact { algorithm }, _) if algorithm.contains("iFUB") => format!(
                 "{} (exact: double-sweep bound {}, then iFUB; {} BFS runs)",
-                f.value,
+                f.value(),
                 dm.double_sweep_bound,
                 count(dm.bfs_runs)
             ),
             _ => format!(
                 "{} (exact, from all-pairs distances; the double-sweep bound was {})",
-                f.value, dm.double_sweep_bound
+                f.value(),
+                dm.double_sweep_bound
             ),
         };
         row(out, "diameter", text);
@@ -436,19 +437,20 @@ fn distance_text(out: &mut String, p: &Profile) {
                 "mean",
                 format!(
                     "{} over {} ordered pairs (exact, all-pairs BFS)",
-                    fixed(s.mean.value, 6),
+                    fixed(s.mean.value(), 6),
                     count(s.pairs)
                 ),
             );
             if let Some(r) = &s.radius {
-                row(out, "radius", format!("{}", r.value));
+                row(out, "radius", format!("{}", r.value()));
             }
             row(
                 out,
                 "effective",
                 format!(
                     "diameter {:.3} (90% of pairs, interpolated, self pairs excluded; {:.3} with them)",
-                    s.effective_diameter.value, s.effective_diameter_with_self
+                    s.effective_diameter.value(),
+                    s.effective_diameter_with_self
                 ),
             );
             let dist: Vec<String> = s
@@ -488,8 +490,8 @@ fn distance_text(out: &mut String, p: &Profile) {
                 .distribution
                 .iter()
                 .enumerate()
-                .filter(|(_, f)| f.value >= 0.0005)
-                .map(|(d, f)| format!("{}: {:.1}%", d + 1, 100.0 * f.value))
+                .filter(|(_, f)| f.value() >= 0.0005)
+                .map(|(d, f)| format!("{}: {:.1}%", d + 1, 100.0 * f.value()))
                 .collect();
             row(
                 out,
@@ -593,7 +595,7 @@ pub fn sweep_text(s: &crate::models::sweep::Sweep) -> String {
     let level = s
         .rows
         .iter()
-        .find_map(|r| r.clustering_ratio.interval.map(|iv| iv.level))
+        .find_map(|r| r.clustering_ratio.interval().map(|iv| iv.level))
         .unwrap_or(0.95);
     let _ = writeln!(
         out,
@@ -613,9 +615,9 @@ pub fn sweep_text(s: &crate::models::sweep::Sweep) -> String {
         "  {:<8} {:<18} {:<18} {:<18} L(p)",
         "p", "C(p)/C(0)", "L(p)/L(0)", "C(p)"
     );
-    let pm = |f: &Figure| match f.interval {
-        Some(iv) => format!("{:.4} ± {:.4}", f.value, (iv.high - iv.low) / 2.0),
-        None => format!("{:.4}", f.value),
+    let pm = |f: &Figure| match f.interval() {
+        Some(iv) => format!("{:.4} ± {:.4}", f.value(), (iv.high - iv.low) / 2.0),
+        None => format!("{:.4}", f.value()),
     };
     for r in &s.rows {
         let _ = writeln!(
@@ -678,14 +680,14 @@ pub fn drift_text(
 
 pub fn sketch_churn_text(c: &crate::estimate::sketch::Churn) -> String {
     let mut out = String::new();
-    let f = |x: &Figure| match x.interval {
+    let f = |x: &Figure| match x.interval() {
         Some(iv) => format!(
             "{} ({}–{})",
-            count(x.value.round() as u64),
+            count(x.value().round() as u64),
             count(iv.low.max(0.0).round() as u64),
             count(iv.high.round() as u64)
         ),
-        None => count(x.value.round() as u64),
+        None => count(x.value().round() as u64),
     };
     row(
         &mut out,
@@ -696,7 +698,7 @@ pub fn sketch_churn_text(c: &crate::estimate::sketch::Churn) -> String {
             f(&c.vanished_nodes),
             f(&c.appeared_edges),
             f(&c.vanished_edges),
-            100.0 * c.appeared_nodes.interval.map_or(0.95, |i| i.level)
+            100.0 * c.appeared_nodes.interval().map_or(0.95, |i| i.level)
         ),
     );
     out
@@ -708,8 +710,8 @@ fn change_row(out: &mut String, c: &crate::monitor::drift::Change, level: f64) {
     use crate::monitor::drift::{Threshold, Verdict};
     use crate::output::number::{places_for, plain, signed};
     let diff = &c.difference;
-    let places = places_for(diff.value, 4);
-    let iv = match (&diff.method, diff.interval) {
+    let places = places_for(diff.value(), 4);
+    let iv = match (&diff.method(), diff.interval()) {
         (Method::Estimate { .. }, Some(iv)) => {
             format!(" (interval {} to {})", signed(iv.low), signed(iv.high))
         }
@@ -746,7 +748,7 @@ fn change_row(out: &mut String, c: &crate::monitor::drift::Change, level: f64) {
             c.label,
             plain(c.before, places),
             plain(c.after, places),
-            signed(diff.value)
+            signed(diff.value())
         )
     };
     row(out, label, text);

@@ -723,7 +723,7 @@ fn small_world(
         .map(|s| s.seconds)
         .sum();
     let (n, m) = (sub.node_count() as u64, sub.edge_count());
-    let levels = (2.0 * o.mean_distance.value).ceil() as u64 + 2;
+    let levels = (2.0 * o.mean_distance.value()).ceil() as u64 + 2;
     let per_reference = clustering_secs
         + seconds(
             bfs_work(256, n, m, levels),
