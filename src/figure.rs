@@ -1,6 +1,32 @@
 //! One result type for every figure plumb reports, exact or estimated: the value, how it was
 //! obtained, on how much data, and for estimates a standard error and a confidence interval at a
 //! stated level. An estimate cannot be made without an interval.
+//!
+//! ```
+//! use plumb::figure::{Figure, Interval};
+//! let t = Figure::estimate(
+//!     0.25,
+//!     "wedge sampling",
+//!     18_445,
+//!     0.001,
+//!     Interval { low: 0.248, high: 0.252, level: 0.95 },
+//! );
+//! assert!(t.is_estimate() && t.interval().is_some());
+//! assert_eq!(Figure::exact(45.0, "forward triangle listing").interval(), None);
+//! ```
+//!
+//! A figure cannot be assembled field by field:
+//!
+//! ```compile_fail
+//! use plumb::figure::{Figure, Method};
+//! let f = Figure {
+//!     value: 0.25,
+//!     method: Method::Estimate { estimator: "guess".into() },
+//!     sample_size: None,
+//!     std_error: None,
+//!     interval: None,
+//! };
+//! ```
 
 use serde::{Deserialize, Serialize};
 
@@ -29,32 +55,6 @@ pub struct Interval {
 /// One reported figure: its value, how it was obtained, on how much data, and for estimates its
 /// standard error and interval. The fields are private and the constructors are the only way to
 /// make one, so an estimate without an interval cannot exist.
-///
-/// ```
-/// use plumb::figure::{Figure, Interval};
-/// let t = Figure::estimate(
-///     0.25,
-///     "wedge sampling",
-///     18_445,
-///     0.001,
-///     Interval { low: 0.248, high: 0.252, level: 0.95 },
-/// );
-/// assert!(t.is_estimate() && t.interval().is_some());
-/// assert_eq!(Figure::exact(45.0, "forward triangle listing").interval(), None);
-/// ```
-///
-/// A figure cannot be assembled field by field:
-///
-/// ```compile_fail
-/// use plumb::figure::{Figure, Method};
-/// let f = Figure {
-///     value: 0.25,
-///     method: Method::Estimate { estimator: "guess".into() },
-///     sample_size: None,
-///     std_error: None,
-///     interval: None,
-/// };
-/// ```
 #[derive(Debug, Clone, PartialEq, Serialize, Deserialize, schemars::JsonSchema)]
 pub struct Figure {
     /// The value (for bounds: the lower bound).
