@@ -109,6 +109,21 @@ impl Components {
             .collect()
     }
 
+    /// Nodes in the giant component.
+    pub fn giant_size(&self) -> usize {
+        self.sizes.first().map_or(0, |&(_, c)| c as usize)
+    }
+
+    /// Each node's component rank: 1 for the giant component, then by size.
+    pub fn ranks(&self) -> Vec<u32> {
+        let mut rank = vec![0u32; self.label.len()];
+        for (r, &(label, _)) in self.sizes.iter().enumerate() {
+            rank[label as usize] = r as u32 + 1;
+        }
+        self.label.iter().map(|&l| rank[l as usize]).collect()
+    }
+
+    /// Size, giant component and size histogram of the components of `g`.
     pub fn stats(&self, g: &Csr) -> ComponentStats {
         let n = self.label.len() as u64;
         let giant = self.giant();

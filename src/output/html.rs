@@ -512,7 +512,7 @@ pub fn page(r: &Report) -> String {
         let _ = write!(
             out,
             "<tr><td>{}</td><td>{}</td><td class=\"how\">{}</td></tr>",
-            esc(&dcs.group),
+            esc(dcs.group.label()),
             esc(&dcs.method),
             esc(&dcs.reason)
         );

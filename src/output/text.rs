@@ -557,7 +557,7 @@ fn small_world_text(out: &mut String, sw: &crate::models::smallworld::SmallWorld
 fn method_text(out: &mut String, p: &Profile, per_node: Option<&std::path::Path>) {
     section(out, "method");
     for d in &p.plan {
-        row(out, &d.group, &d.method);
+        row(out, d.group.label(), &d.method);
         row(out, "", format!("why: {}", d.reason));
     }
     let parts: Vec<String> = p

@@ -4,11 +4,40 @@
 
 use serde::{Deserialize, Serialize};
 
+/// The figure groups the planner decides a method for.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Hash, Serialize, Deserialize, schemars::JsonSchema)]
+#[serde(rename_all = "lowercase")]
+pub enum Group {
+    /// Triangles, transitivity and local clustering.
+    Clustering,
+    /// Mean distance, distribution, effective diameter.
+    Distances,
+    /// The reference graphs of the small-world comparison.
+    References,
+}
+
+impl Group {
+    /// The group's name in reports.
+    pub fn label(self) -> &'static str {
+        match self {
+            Group::Clustering => "clustering",
+            Group::Distances => "distances",
+            Group::References => "references",
+        }
+    }
+}
+
+impl std::fmt::Display for Group {
+    fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
+        f.write_str(self.label())
+    }
+}
+
 /// What the planner decided for one figure group, and why.
 #[derive(Debug, Clone, PartialEq, Serialize, Deserialize, schemars::JsonSchema)]
 pub struct Decision {
-    /// The figure group: "clustering", "distances", "diameter".
-    pub group: String,
+    /// The figure group.
+    pub group: Group,
     /// The method that ran.
     pub method: String,
     /// Predicted seconds of the exact method on this machine.
@@ -41,4 +70,45 @@ pub enum DistanceEstimator {
     Sources,
     /// HyperBall over the whole graph.
     Ball,
+}
+
+/// Exact or estimate for one group: the user's choice, or exact when its predicted time fits
+/// the budget.
+pub(crate) fn decide(choice: Choice, predicted: f64, budget: f64) -> bool {
+    match choice {
+        Choice::Exact => true,
+        Choice::Estimate => false,
+        Choice::Auto => predicted <= budget,
+    }
+}
+
+/// The report's sentence for a decision.
+pub(crate) fn why(choice: Choice, exact: bool, what: &str, predicted: f64, budget: f64) -> String {
+    match (choice, exact) {
+        (Choice::Auto, true) => format!(
+            "exact {what} predicted {} on this machine, within the {} budget",
+            secs(predicted),
+            secs(budget)
+        ),
+        (Choice::Auto, false) => format!(
+            "exact {what} predicted {}, over the {} budget",
+            secs(predicted),
+            secs(budget)
+        ),
+        _ => format!(
+            "chosen by the user (exact {what} predicted {})",
+            secs(predicted)
+        ),
+    }
+}
+
+/// Seconds with the digits a prediction deserves.
+pub(crate) fn secs(s: f64) -> String {
+    if s < 1.0 {
+        format!("{s:.2} s")
+    } else if s < 100.0 {
+        format!("{s:.1} s")
+    } else {
+        format!("{s:.2e} s")
+    }
 }

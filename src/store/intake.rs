@@ -30,10 +30,88 @@ pub struct BadLine {
     pub excerpt: String,
 }
 
-/// Wall time of one stage of the build.
+/// The stages of reading and profiling whose wall time is reported.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Hash, Serialize, Deserialize, schemars::JsonSchema)]
+pub enum StageName {
+    /// First pass over the text: validate lines, tally ids and degrees.
+    #[serde(rename = "scan")]
+    Scan,
+    /// Rank the ids into dense node indices.
+    #[serde(rename = "index ids")]
+    IndexIds,
+    /// Second pass: write the adjacency.
+    #[serde(rename = "fill")]
+    Fill,
+    /// Sort each list and merge repeats.
+    #[serde(rename = "sort and merge")]
+    SortAndMerge,
+    /// Degree statistics.
+    #[serde(rename = "degrees")]
+    Degrees,
+    /// Connected components.
+    #[serde(rename = "components")]
+    Components,
+    /// Exact triangle listing.
+    #[serde(rename = "triangles")]
+    Triangles,
+    /// Wedge-sampled clustering.
+    #[serde(rename = "sampled clustering")]
+    SampledClustering,
+    /// Diameter bounds and search.
+    #[serde(rename = "diameter")]
+    Diameter,
+    /// Exact all-pairs distances.
+    #[serde(rename = "all-pairs distances")]
+    AllPairsDistances,
+    /// BFS from sampled sources.
+    #[serde(rename = "sampled distances")]
+    SampledDistances,
+    /// HyperBall neighbourhood function.
+    #[serde(rename = "HyperBall")]
+    HyperBall,
+    /// Sampled reference graphs for the small-world comparison.
+    #[serde(rename = "reference graphs")]
+    ReferenceGraphs,
+}
+
+impl StageName {
+    /// The stage's name in reports and progress bars.
+    pub fn label(self) -> &'static str {
+        match self {
+            StageName::Scan => "scan",
+            StageName::IndexIds => "index ids",
+            StageName::Fill => "fill",
+            StageName::SortAndMerge => "sort and merge",
+            StageName::Degrees => "degrees",
+            StageName::Components => "components",
+            StageName::Triangles => "triangles",
+            StageName::SampledClustering => "sampled clustering",
+            StageName::Diameter => "diameter",
+            StageName::AllPairsDistances => "all-pairs distances",
+            StageName::SampledDistances => "sampled distances",
+            StageName::HyperBall => "HyperBall",
+            StageName::ReferenceGraphs => "reference graphs",
+        }
+    }
+
+    /// Whether the stage measured clustering (exact or sampled).
+    pub fn is_clustering(self) -> bool {
+        matches!(self, StageName::Triangles | StageName::SampledClustering)
+    }
+}
+
+impl std::fmt::Display for StageName {
+    fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
+        f.write_str(self.label())
+    }
+}
+
+/// Wall time of one stage.
 #[derive(Debug, Clone, PartialEq, Serialize, Deserialize, schemars::JsonSchema)]
 pub struct Stage {
-    pub name: String,
+    /// Which stage.
+    pub name: StageName,
+    /// Wall time in seconds.
     pub seconds: f64,
 }
 

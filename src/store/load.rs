@@ -22,7 +22,7 @@ use crate::read::source::{self, Compression, InputBytes, Sniffed, StreamFault};
 use crate::store::fill::Filler;
 use crate::store::graph::{Graph, NodeIds};
 use crate::store::ids::{self, IndexFault, IntIndex, IntTally, TextIndex, TextTally};
-use crate::store::intake::{BadLine, FirstTextId, IdKind, InputFormat, Intake, Stage};
+use crate::store::intake::{BadLine, FirstTextId, IdKind, InputFormat, Intake, Stage, StageName};
 
 /// Which grammar to read the input with.
 #[derive(Debug, Clone, Copy, PartialEq, Eq, Default)]
@@ -254,10 +254,10 @@ impl<'a> Loader<'a> {
         })
     }
 
-    fn stage_done(&mut self, name: &str) {
+    fn stage_done(&mut self, name: StageName) {
         let now = Instant::now();
         self.stages.push(Stage {
-            name: name.to_string(),
+            name,
             seconds: (now - self.clock).as_secs_f64(),
         });
         self.clock = now;
@@ -321,7 +321,7 @@ impl<'a> Loader<'a> {
             kept.extend(w.kept);
         }
         let scanned = self.check(outcomes, info)?;
-        self.stage_done("scan");
+        self.stage_done(StageName::Scan);
         if scanned.outcomes.iter().any(|o| o.stopped) {
             drop((tallies, kept));
             // Only edge lists stop: Matrix Market entries are checked as integers before.
@@ -338,7 +338,7 @@ impl<'a> Loader<'a> {
         }
         let index = IntIndex::build(tallies, self.mtx.as_ref().map(|h| h.rows), self.max_nodes())
             .map_err(|f| self.index_fault(f))?;
-        self.stage_done("index ids");
+        self.stage_done(StageName::IndexIds);
 
         self.check_fill_budget(&index.raw_degree)?;
         let filler = Filler::new(&index.raw_degree);
@@ -398,7 +398,7 @@ impl<'a> Loader<'a> {
             )
             .map_err(|f| self.stream_fault(f, &scanned.outcomes))?;
         }
-        self.stage_done("fill");
+        self.stage_done(StageName::Fill);
         let ids = NodeIds::from_ints(index.into_ids());
         self.finish(filler, ids, IdKind::Integer, scanned)
     }
@@ -447,7 +447,7 @@ impl<'a> Loader<'a> {
         let scanned = self.check(outcomes, info)?;
         self.first_text_id = self.place_first_text_id(&scanned, firsts);
         let index = TextIndex::build(tallies, self.max_nodes()).map_err(|f| self.index_fault(f))?;
-        self.stage_done("index ids");
+        self.stage_done(StageName::IndexIds);
 
         self.check_fill_budget(&index.raw_degree)?;
         let filler = Filler::new(&index.raw_degree);
@@ -468,7 +468,7 @@ impl<'a> Loader<'a> {
             },
         )
         .map_err(|f| self.stream_fault(f, &scanned.outcomes))?;
-        self.stage_done("fill");
+        self.stage_done(StageName::Fill);
         let ids = NodeIds::Text {
             offsets: index.offsets.into(),
             bytes: index.bytes.into(),
@@ -488,7 +488,7 @@ impl<'a> Loader<'a> {
             path: self.input.path.clone(),
             problem,
         })?;
-        self.stage_done("sort and merge");
+        self.stage_done(StageName::SortAndMerge);
         let mut total = Counts::default();
         let mut examples = Vec::new();
         let mut header_skipped = false;

@@ -1,0 +1,327 @@
+//! The distance group: on the giant component, the diameter (double sweep, then iFUB within its
+//! own budget, or exact from all-pairs distances), and the mean distance, distribution and
+//! effective diameter, exact by bit-parallel all-pairs BFS when the planner predicts it fits the
+//! budget, else estimated by BFS from sampled sources (Eppstein & Wang, J. Graph Algorithms
+//! Appl. 8(1) 2004) or HyperBall (Boldi, Rosa & Vigna, WWW 2011), whichever is predicted cheaper.
+//! Diameter bounds: Magnien, Latapy & Habib (ACM JEA 2009); iFUB: Crescenzi, Grossi, Habib,
+//! Lanzi & Marino (Theor. Comput. Sci. 514, 2013).
+
+use crate::estimate::distance as sampled;
+use crate::estimate::hyperball::{self, BallOptions};
+use crate::exact::components::{self, Components};
+use crate::exact::cost::{all_pairs_work, ball_work, bfs_work, seconds};
+use crate::exact::diameter;
+use crate::exact::distances::{self, DistanceStats};
+use crate::figure::Figure;
+use crate::profile::clock::Clock;
+use crate::profile::plan::{Choice, Decision, DistanceEstimator, Group, decide, secs, why};
+use crate::profile::{DiameterFigures, Distances, EstimatedDistances, ProfileOptions};
+use crate::store::csr::Csr;
+use crate::store::intake::StageName;
+
+/// The giant component as a graph of its own. Its nodes have their own dense indices; the
+/// mapping back to the whole graph's indices is `whole_index`.
+pub(crate) struct GiantComponent {
+    /// The induced subgraph, indexed 0..k.
+    pub(crate) csr: Csr,
+    /// `whole_index[local]` is that node's index in the whole graph.
+    pub(crate) whole_index: Vec<u32>,
+}
+
+impl GiantComponent {
+    /// The whole graph's index of the giant component's node `local`.
+    pub(crate) fn whole(&self, local: u32) -> usize {
+        self.whole_index[local as usize] as usize
+    }
+}
+
+/// What the distance group found.
+pub(crate) struct DistanceOutcome {
+    pub(crate) node_set: String,
+    pub(crate) diameter: Option<DiameterFigures>,
+    pub(crate) distances: Distances,
+    pub(crate) decision: Option<Decision>,
+    /// The giant component, when it has a pair to measure.
+    pub(crate) giant: Option<GiantComponent>,
+}
+
+/// Which nodes the distance figures are on, in words.
+pub(crate) fn node_set(comps: &Components, n: usize, giant: usize) -> String {
+    if comps.sizes.len() <= 1 {
+        "whole graph (connected)".to_string()
+    } else {
+        format!("giant component ({giant} of {n} nodes)")
+    }
+}
+
+/// Ordered pairs of distinct nodes in different components.
+fn unreachable_pairs(comps: &Components, n: usize) -> u64 {
+    let all = n as u128 * (n as u128).saturating_sub(1);
+    let within: u128 = comps
+        .sizes
+        .iter()
+        .map(|&(_, s)| s as u128 * (s as u128).saturating_sub(1))
+        .sum();
+    (all - within) as u64
+}
+
+/// The distance group's one entry point: decides exact or estimated and returns the figures;
+/// eccentricities found on the way are written into `eccentricity` (whole-graph indices).
+pub(crate) fn run(
+    csr: &Csr,
+    comps: &Components,
+    opts: &ProfileOptions,
+    clock: &mut Clock,
+    eccentricity: &mut [Option<u32>],
+) -> DistanceOutcome {
+    let n = csr.node_count();
+    let whole_index = comps.giant_nodes();
+    let node_set = node_set(comps, n, whole_index.len());
+    if whole_index.len() < 2 {
+        return DistanceOutcome {
+            node_set,
+            diameter: None,
+            distances: Distances::Empty,
+            decision: None,
+            giant: None,
+        };
+    }
+    let giant = GiantComponent {
+        csr: components::induced(csr, &whole_index),
+        whole_index,
+    };
+    let unreachable = unreachable_pairs(comps, n);
+    let sub = &giant.csr;
+    let (sn, sm) = (sub.node_count() as u64, sub.edge_count());
+    clock.start(StageName::Diameter);
+    let sweep = diameter::sweep(sub);
+    let sweep_bound = sweep.lower;
+    let levels = sweep.lower as u64;
+    let ap_secs = seconds(
+        all_pairs_work(sn, sm, levels),
+        opts.rates.bfs_words,
+        opts.threads,
+    );
+    let all = decide(opts.distances, ap_secs, opts.exact_seconds);
+    // The diameter search has its own, smaller budget: on real-world graphs iFUB needs a few
+    // searches, and where it needs many (homogeneous random graphs) certain bounds serve.
+    let word_budget = opts.diameter_seconds * opts.rates.bfs_words * opts.threads as f64;
+    let search = (!all).then(|| diameter::ifub(sub, sweep, word_budget));
+    clock.done(StageName::Diameter);
+    let (distances, decision) = if all {
+        clock.start(StageName::AllPairsDistances);
+        let ap = distances::all_pairs(sub);
+        for (local, &e) in ap.eccentricity.iter().enumerate() {
+            eccentricity[giant.whole(local as u32)] = Some(e);
+        }
+        let stats = DistanceStats::from_all_pairs(&ap, &node_set, unreachable);
+        clock.done(StageName::AllPairsDistances);
+        let decision = Decision {
+            group: Group::Distances,
+            method: "exact: all-pairs bit-parallel BFS".into(),
+            exact_seconds: ap_secs,
+            budget_seconds: (opts.distances == Choice::Auto).then_some(opts.exact_seconds),
+            reason: why(
+                opts.distances,
+                true,
+                "all-pairs BFS",
+                ap_secs,
+                opts.exact_seconds,
+            ),
+        };
+        (Distances::Exact(Box::new(stats)), decision)
+    } else {
+        let on = Giant {
+            csr: sub,
+            node_set: &node_set,
+            unreachable,
+            levels,
+        };
+        let (est, decision) = estimate_distances(&on, opts, clock, ap_secs);
+        (Distances::Estimated(Box::new(est)), decision)
+    };
+    let diameter = match (&distances, search) {
+        (Distances::Exact(s), _) => DiameterFigures {
+            diameter: s.diameter.clone(),
+            double_sweep_bound: sweep_bound,
+            bfs_runs: 3 + s.nodes,
+        },
+        (_, Some(mut d)) => {
+            for &(local, e) in &d.known {
+                eccentricity[giant.whole(local)] = Some(e);
+            }
+            // The sampled sources' farthest distance is an eccentricity too: a lower bound.
+            if let Distances::Estimated(e) = &distances {
+                d.lower = d.lower.max(e.distribution.len() as u32).min(d.upper);
+            }
+            DiameterFigures {
+                diameter: if d.is_exact() {
+                    Figure::exact(
+                        d.lower as f64,
+                        "double sweep + iFUB (Crescenzi et al. 2013)",
+                    )
+                } else {
+                    Figure::bounds(
+                        d.lower as f64,
+                        d.upper as f64,
+                        "double sweep, iFUB stopped at the time budget, and the sampled \
+                         sources' eccentricities",
+                    )
+                },
+                double_sweep_bound: d.double_sweep_bound,
+                bfs_runs: d.bfs_runs,
+            }
+        }
+        (_, None) => unreachable!("iFUB runs whenever all-pairs does not"),
+    };
+    DistanceOutcome {
+        node_set,
+        diameter: Some(diameter),
+        distances,
+        decision: Some(decision),
+        giant: Some(giant),
+    }
+}
+
+/// The connected node set distances are measured on, for the estimators.
+struct Giant<'a> {
+    csr: &'a Csr,
+    node_set: &'a str,
+    /// Ordered pairs of the whole graph in different components.
+    unreachable: u64,
+    /// BFS levels to expect (the double-sweep bound).
+    levels: u64,
+}
+
+/// Distances of the connected `sub` by the sampled-source or HyperBall estimator, whichever the
+/// options ask for or is predicted cheaper for the requested precision.
+fn estimate_distances(
+    giant: &Giant,
+    opts: &ProfileOptions,
+    clock: &mut Clock,
+    ap_secs: f64,
+) -> (EstimatedDistances, Decision) {
+    let Giant {
+        csr: sub,
+        node_set,
+        unreachable,
+        levels,
+    } = *giant;
+    let (sn, sm) = (sub.node_count() as u64, sub.edge_count());
+    let threads = opts.threads;
+    let registers = 1u64 << opts.ball.log2_registers;
+    // HyperBall runs about as many rounds as the diameter, of which the sweep gives a bound.
+    let ball_secs = seconds(
+        ball_work(sn, sm, registers, levels + 1, opts.ball.repeats as u64),
+        opts.rates.ball_bytes,
+        threads,
+    );
+    let mut pilot = None;
+    let use_ball = match opts.distance_estimator {
+        DistanceEstimator::Ball => true,
+        DistanceEstimator::Sources => false,
+        DistanceEstimator::Cheaper => {
+            clock.start(StageName::SampledDistances);
+            let p = sampled::pilot(sub, opts.level, opts.max_sources, opts.seed);
+            let k = p.sources_needed(opts.distance_tolerance, opts.level) as u64;
+            let src_secs = seconds(bfs_work(k, sn, sm, levels), opts.rates.bfs_words, threads);
+            pilot = Some((p, src_secs));
+            ball_secs < src_secs
+        }
+    };
+    let what = why(
+        opts.distances,
+        false,
+        "all-pairs BFS",
+        ap_secs,
+        opts.exact_seconds,
+    );
+    // Each estimator gives its figures and how it describes itself; the result is built once.
+    let (est, method, reason) = if use_ball {
+        clock.start(StageName::HyperBall);
+        let ball = BallOptions {
+            level: opts.level,
+            seed: opts.seed,
+            ..opts.ball
+        };
+        let e = hyperball::estimate(sub, &ball, &|_| clock.progress.advance(1));
+        clock.done(StageName::HyperBall);
+        let mut reason = what;
+        if let Some((_, src)) = &pilot {
+            reason += &format!(
+                "; HyperBall predicted {} against {} for sampled sources",
+                secs(ball_secs),
+                secs(*src)
+            );
+        }
+        let method = format!(
+            "HyperBall, {} registers per node × {} hash seeds (each counter ±{:.1}% relative \
+             standard error)",
+            e.registers,
+            opts.ball.repeats,
+            100.0 * e.counter_rse
+        );
+        let est = EstimatedDistances {
+            node_set: node_set.to_string(),
+            nodes: sn,
+            mean: e.mean,
+            effective_diameter: e.effective_diameter,
+            distribution: e.distribution,
+            unreachable_pairs_in_graph: unreachable,
+            sources: None,
+            registers: Some(e.registers),
+            counter_rse: Some(e.counter_rse),
+        };
+        (est, method, reason)
+    } else {
+        let (e, reason) = match pilot {
+            Some((p, src_secs)) => {
+                let e = p.finish(sub, opts.distance_tolerance, opts.level, opts.seed);
+                let reason = format!(
+                    "{what}; sampled sources predicted {} against {} for HyperBall",
+                    secs(src_secs),
+                    secs(ball_secs)
+                );
+                (e, reason)
+            }
+            None => {
+                clock.start(StageName::SampledDistances);
+                let e = sampled::estimate_to_precision(
+                    sub,
+                    opts.distance_tolerance,
+                    opts.level,
+                    opts.max_sources,
+                    opts.seed,
+                );
+                (e, what)
+            }
+        };
+        clock.done(StageName::SampledDistances);
+        let method = format!(
+            "BFS from {} sampled sources, to ±{}% of the mean at {}%",
+            e.sources,
+            100.0 * opts.distance_tolerance,
+            100.0 * opts.level
+        );
+        let est = EstimatedDistances {
+            node_set: node_set.to_string(),
+            nodes: sn,
+            mean: e.mean,
+            effective_diameter: e.effective_diameter,
+            distribution: e.distribution,
+            unreachable_pairs_in_graph: unreachable,
+            sources: Some(e.sources),
+            registers: None,
+            counter_rse: None,
+        };
+        (est, method, reason)
+    };
+    let decision = Decision {
+        group: Group::Distances,
+        method,
+        exact_seconds: ap_secs,
+        budget_seconds: (opts.distances == Choice::Auto).then_some(opts.exact_seconds),
+        reason,
+    };
+    (est, decision)
+}
