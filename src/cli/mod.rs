@@ -129,7 +129,7 @@ pub(crate) fn run(args: Args) -> Result<ExitCode, Error> {
             let g = load(&input.input, &input.options(), &bars)?;
             emit(
                 json.as_deref(),
-                || show::intake_json(&g),
+                || plumb::output::json::intake_json(&g),
                 || show::intake_text(&g, "intake"),
             )?;
         }
@@ -248,7 +248,7 @@ fn track(
     emit(
         check.verdict_json.as_deref(),
         || {
-            show::to_json(
+            plumb::output::json::to_json(
                 "track",
                 &serde_json::json!({
                     "added": {"seq": t.entry.seq, "label": t.entry.label, "file": t.entry.file},
@@ -271,11 +271,11 @@ fn track(
                 text.push_str("  first snapshot: it is the baseline; nothing to compare yet\n");
             }
             for (i, d) in t.comparisons.iter().enumerate() {
-                text.push_str(&show::drift_text(d, None));
+                text.push_str(&plumb::output::changes::drift_text(d, None));
                 if i == 0
                     && let Some(c) = &t.churn_since_previous
                 {
-                    text.push_str(&show::sketch_churn_text(c));
+                    text.push_str(&plumb::output::changes::sketch_churn_text(c));
                 }
             }
             text
@@ -301,11 +301,11 @@ fn compare(
     )?;
     emit(
         check.verdict_json.as_deref(),
-        || show::to_json("comparison", &c),
+        || plumb::output::json::to_json("comparison", &c),
         || {
-            let mut t = show::drift_text(&c.drift, c.churn.as_ref());
+            let mut t = plumb::output::changes::drift_text(&c.drift, c.churn.as_ref());
             if let Some(e) = &c.estimated_churn {
-                t.push_str(&show::sketch_churn_text(e));
+                t.push_str(&plumb::output::changes::sketch_churn_text(e));
             }
             t
         },
@@ -433,7 +433,7 @@ fn sweep(
     bars.finish();
     emit(
         json,
-        || show::to_json("sweep", &sweep),
+        || plumb::output::json::to_json("sweep", &sweep),
         || show::sweep_text(&sweep),
     )
 }

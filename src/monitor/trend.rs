@@ -5,8 +5,9 @@
 use std::fmt::Write as _;
 
 use crate::monitor::drift::{FigureKey, Threshold, compare, figures_of};
-use crate::monitor::history::History;
+use crate::monitor::history::{Entry, History};
 use crate::output::svg::{Axis, Mark, Point, Series, chart, esc};
+use crate::profile::report::Report;
 
 pub fn page(h: &History, level: f64, thresholds: &[(FigureKey, Threshold)]) -> String {
     let snaps = h.reports();
@@ -46,69 +47,9 @@ pub fn page(h: &History, level: f64, thresholds: &[(FigureKey, Threshold)]) -> S
         FigureKey::Components,
     ];
     for key in order {
-        let label = key.label();
-        let mut normal = Vec::new();
-        let mut flagged = Vec::new();
-        for (i, (_, r)) in snaps.iter().enumerate() {
-            if let Some((_, f)) = figures_of(r).into_iter().find(|(k, _)| *k == key) {
-                let p = Point {
-                    x: i as f64 + 1.0,
-                    y: f.value(),
-                    interval: match (&f.method(), f.interval()) {
-                        (crate::figure::Method::Estimate { .. }, Some(iv)) => {
-                            Some((iv.low, iv.high))
-                        }
-                        _ => None,
-                    },
-                };
-                if alerts[i].contains(&key) {
-                    flagged.push(p);
-                }
-                normal.push(p);
-            }
+        if let Some(svg) = figure_chart(key, &snaps, &names, &alerts) {
+            let _ = write!(charts, "<figure>{svg}</figure>");
         }
-        if normal.is_empty() {
-            continue;
-        }
-        let x = Axis::categories("snapshot", &names);
-        let y = Axis::fit(
-            label,
-            false,
-            normal.iter().flat_map(|p| {
-                let (a, b) = p.interval.unwrap_or((p.y, p.y));
-                [a, b]
-            }),
-            false,
-        );
-        let mut series = vec![Series {
-            name: (*label).to_string(),
-            mark: Mark::Circle,
-            line: true,
-            points: normal,
-        }];
-        if !flagged.is_empty() {
-            series.push(Series {
-                name: "alert: changed beyond its threshold".into(),
-                mark: Mark::Diamond,
-                line: false,
-                points: flagged,
-            });
-        }
-        let _ = write!(
-            charts,
-            "<figure>{}</figure>",
-            chart(
-                &format!("trend-{key}"),
-                &format!("{label} over time"),
-                &format!(
-                    "{label} in each snapshot, with interval bars when estimated; diamonds mark alerts against the previous snapshot."
-                ),
-                &x,
-                &y,
-                &series,
-                &[],
-            )
-        );
     }
     let mut alert_list = String::new();
     for (i, a) in alerts.iter().enumerate() {
@@ -137,4 +78,70 @@ pub fn page(h: &History, level: f64, thresholds: &[(FigureKey, Threshold)]) -> S
         lvl = 100.0 * level,
         v = env!("CARGO_PKG_VERSION"),
     )
+}
+
+/// The trend chart of one figure over the snapshots, alerts marked; none when no snapshot has it.
+fn figure_chart(
+    key: FigureKey,
+    snaps: &[(&Entry, &Report)],
+    names: &[&str],
+    alerts: &[Vec<FigureKey>],
+) -> Option<String> {
+    let label = key.label();
+    let mut normal = Vec::new();
+    let mut flagged = Vec::new();
+    for (i, (_, r)) in snaps.iter().enumerate() {
+        if let Some((_, f)) = figures_of(r).into_iter().find(|(k, _)| *k == key) {
+            let p = Point {
+                x: i as f64 + 1.0,
+                y: f.value(),
+                interval: match (&f.method(), f.interval()) {
+                    (crate::figure::Method::Estimate { .. }, Some(iv)) => Some((iv.low, iv.high)),
+                    _ => None,
+                },
+            };
+            if alerts[i].contains(&key) {
+                flagged.push(p);
+            }
+            normal.push(p);
+        }
+    }
+    if normal.is_empty() {
+        return None;
+    }
+    let x = Axis::categories("snapshot", names);
+    let y = Axis::fit(
+        label,
+        false,
+        normal.iter().flat_map(|p| {
+            let (a, b) = p.interval.unwrap_or((p.y, p.y));
+            [a, b]
+        }),
+        false,
+    );
+    let mut series = vec![Series {
+        name: (*label).to_string(),
+        mark: Mark::Circle,
+        line: true,
+        points: normal,
+    }];
+    if !flagged.is_empty() {
+        series.push(Series {
+            name: "alert: changed beyond its threshold".into(),
+            mark: Mark::Diamond,
+            line: false,
+            points: flagged,
+        });
+    }
+    Some(chart(
+        &format!("trend-{key}"),
+        &format!("{label} over time"),
+        &format!(
+            "{label} in each snapshot, with interval bars when estimated; diamonds mark alerts against the previous snapshot."
+        ),
+        &x,
+        &y,
+        &series,
+        &[],
+    ))
 }

@@ -6,9 +6,10 @@
 use std::fmt::Write as _;
 
 use crate::figure::{Figure, Method};
+use crate::models::smallworld::SmallWorld;
 use crate::output::svg::{Axis, Guide, Mark, Point, Series, chart, esc};
-use crate::profile::Distances;
 use crate::profile::report::Report;
+use crate::profile::{Distances, Profile};
 
 pub const STYLE: &str = r#"
 :root { --ink: #1c2630; --soft: #5b6770; --rule: #d5d9dc; --paper: #fbfaf7; --a: #7a3b1d; --b: #2f5d62; --c: #6b6b6b; }
@@ -94,10 +95,56 @@ fn point(x: f64, f: &Figure) -> Point {
     }
 }
 
-/// The page for `r`.
+/// A row of the figures table: name, figure, decimals.
+type Row = (String, Figure, usize);
+/// A chart: its SVG and its caption.
+type Chart = (String, String);
+
+/// The page for `r`: charts, the figures table, the small-world reading and the methods.
 pub fn page(r: &Report) -> String {
     let p = &r.profile;
-    let mut rows: Vec<(String, Figure, usize)> = Vec::new();
+    let (distribution, mean_distance, effective) = distance_figures(p);
+    let rows = figure_rows(p, mean_distance.as_ref(), effective.as_ref());
+    let mut charts = Vec::new();
+    degree_chart(p, &mut charts);
+    clustering_chart(p, &mut charts);
+    distance_chart(p, &distribution, &mut charts);
+    if let Some(sw) = &p.small_world {
+        small_world_charts(p, sw, mean_distance.as_ref(), &mut charts);
+    }
+    render(r, &charts, &rows)
+}
+
+/// The distance distribution (shares of pairs), mean and effective diameter.
+fn distance_figures(p: &Profile) -> (Vec<Figure>, Option<Figure>, Option<Figure>) {
+    match &p.distances {
+        Distances::Exact(s) => {
+            let pairs = s.pairs.max(1) as f64;
+            let dist = s.distribution[1..]
+                .iter()
+                .map(|&c| Figure::exact(c as f64 / pairs, "all-pairs BFS"))
+                .collect();
+            (
+                dist,
+                Some(s.mean.clone()),
+                Some(s.effective_diameter.clone()),
+            )
+        }
+        Distances::Estimated(e) => (
+            e.distribution.clone(),
+            Some(e.mean.clone()),
+            Some(e.effective_diameter.clone()),
+        ),
+        _ => (Vec::new(), None, None),
+    }
+}
+
+fn figure_rows(
+    p: &Profile,
+    mean_distance: Option<&Figure>,
+    effective: Option<&Figure>,
+) -> Vec<Row> {
+    let mut rows: Vec<Row> = Vec::new();
     let d = &p.degrees;
     let exact = |v: f64, what: &str| Figure::exact(v, what);
     rows.push(("nodes".into(), exact(d.nodes as f64, "count"), 0));
@@ -130,31 +177,10 @@ pub fn page(r: &Report) -> String {
     if let Some(dm) = &p.diameter {
         rows.push(("diameter (hops)".into(), dm.diameter.clone(), 0));
     }
-    let (distribution, mean_distance, effective): (Vec<Figure>, Option<Figure>, Option<Figure>) =
-        match &p.distances {
-            Distances::Exact(s) => {
-                let pairs = s.pairs.max(1) as f64;
-                let dist = s.distribution[1..]
-                    .iter()
-                    .map(|&c| Figure::exact(c as f64 / pairs, "all-pairs BFS"))
-                    .collect();
-                (
-                    dist,
-                    Some(s.mean.clone()),
-                    Some(s.effective_diameter.clone()),
-                )
-            }
-            Distances::Estimated(e) => (
-                e.distribution.clone(),
-                Some(e.mean.clone()),
-                Some(e.effective_diameter.clone()),
-            ),
-            _ => (Vec::new(), None, None),
-        };
-    if let Some(m) = &mean_distance {
+    if let Some(m) = mean_distance {
         rows.push(("mean distance (hops)".into(), m.clone(), 4));
     }
-    if let Some(e) = &effective {
+    if let Some(e) = effective {
         rows.push(("effective diameter, 90% (hops)".into(), e.clone(), 3));
     }
     if let Some(sw) = &p.small_world {
@@ -169,8 +195,12 @@ pub fn page(r: &Report) -> String {
         }
     }
 
-    let mut charts = Vec::new();
-    // Degree distribution: complementary CDF, log-log.
+    rows
+}
+
+/// Degree distribution: complementary CDF, log-log.
+fn degree_chart(p: &Profile, charts: &mut Vec<Chart>) {
+    let d = &p.degrees;
     let hist = &d.histogram;
     let total: u64 = hist.iter().sum();
     let mut ccdf = Vec::new();
@@ -211,6 +241,9 @@ pub fn page(r: &Report) -> String {
             "Exact. A straight fall on these axes suggests a heavy tail.".to_string(),
         ));
     }
+}
+
+fn clustering_chart(p: &Profile, charts: &mut Vec<Chart>) {
     // C(k) with interval bars.
     if let Some(c) = &p.clustering {
         let pts: Vec<Point> = c
@@ -258,6 +291,9 @@ pub fn page(r: &Report) -> String {
             ));
         }
     }
+}
+
+fn distance_chart(p: &Profile, distribution: &[Figure], charts: &mut Vec<Chart>) {
     // Distance distribution.
     if !distribution.is_empty() {
         let pts: Vec<Point> = distribution
@@ -296,10 +332,18 @@ pub fn page(r: &Report) -> String {
             format!("On the {}.", p.distance_node_set),
         ));
     }
-    // Small-world: the plane of clustering against mean distance, then the coefficients.
-    if let Some(sw) = &p.small_world {
+}
+
+/// Small-world: the plane of clustering against mean distance, then the coefficients.
+fn small_world_charts(
+    p: &Profile,
+    sw: &SmallWorld,
+    mean_distance: Option<&Figure>,
+    charts: &mut Vec<Chart>,
+) {
+    {
         let mut series = Vec::new();
-        if let (Some(c), Some(l)) = (&p.clustering, &mean_distance) {
+        if let (Some(c), Some(l)) = (&p.clustering, mean_distance) {
             series.push(Series {
                 name: "this graph".into(),
                 mark: Mark::Circle,
@@ -361,6 +405,13 @@ pub fn page(r: &Report) -> String {
             "Small-world graphs sit high like the lattice and left like the random graphs."
                 .to_string(),
         ));
+    }
+    coefficient_chart(sw, charts);
+}
+
+/// Omega and propensity against their thresholds, with intervals.
+fn coefficient_chart(sw: &SmallWorld, charts: &mut Vec<Chart>) {
+    {
         let names: Vec<String> = sw
             .coefficients
             .iter()
@@ -433,7 +484,11 @@ pub fn page(r: &Report) -> String {
             ));
         }
     }
+}
 
+fn render(r: &Report, charts: &[Chart], rows: &[Row]) -> String {
+    let p = &r.profile;
+    let d = &p.degrees;
     let mut out = String::new();
     let i = &p.intake;
     let _ = write!(
@@ -464,7 +519,7 @@ pub fn page(r: &Report) -> String {
     );
     if !charts.is_empty() {
         out.push_str(r#"<h2>Charts</h2><div class="charts">"#);
-        for (svg, caption) in &charts {
+        for (svg, caption) in charts {
             let _ = write!(
                 out,
                 "<figure>{svg}<figcaption>{}</figcaption></figure>",
@@ -474,7 +529,7 @@ pub fn page(r: &Report) -> String {
         out.push_str("</div>");
     }
     out.push_str(r#"<h2>Figures</h2><table><thead><tr><th scope="col">figure</th><th scope="col">value</th><th scope="col">interval</th><th scope="col">how it was obtained</th></tr></thead><tbody>"#);
-    for (name, f, places) in &rows {
+    for (name, f, places) in rows {
         let (v, iv, how) = cells(f, *places);
         let _ = write!(
             out,

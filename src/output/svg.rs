@@ -227,10 +227,14 @@ pub fn chart(
     let legend_rows = if series.len() > 1 { series.len() } else { 0 };
     let top = TOP0 + LEGEND_ROW * legend_rows as f64;
     let h = H + LEGEND_ROW * legend_rows as f64;
-    let pw = W - LEFT - RIGHT;
-    let ph = h - top - BOTTOM;
-    let sx = |v: f64| LEFT + x.frac(v).clamp(-0.02, 1.02) * pw;
-    let sy = |v: f64| top + (1.0 - y.frac(v).clamp(-0.02, 1.02)) * ph;
+    let plot = Plot {
+        top,
+        h,
+        pw: W - LEFT - RIGHT,
+        ph: h - top - BOTTOM,
+        x,
+        y,
+    };
     let mut out = String::new();
     let _ = write!(
         out,
@@ -243,65 +247,108 @@ pub fn chart(
         r#"<text class="ct" x="{LEFT}" y="22">{}</text>"#,
         esc(title)
     );
-    // Frame, grid and ticks.
-    let _ = write!(
-        out,
-        r#"<rect class="frame" x="{LEFT}" y="{top}" width="{pw}" height="{ph}"/>"#
-    );
-    let xt: Vec<(f64, String)> = if x.names.is_empty() {
-        x.ticks()
-            .into_iter()
-            .map(|t| (t, tick_text(t, x.log)))
-            .collect()
-    } else {
-        x.names.clone()
-    };
-    for (t, text) in xt {
-        let px = sx(t);
-        let _ = write!(
-            out,
-            r#"<line class="grid" x1="{px:.1}" y1="{top}" x2="{px:.1}" y2="{:.1}"/><text class="tk" x="{px:.1}" y="{:.1}" text-anchor="middle">{}</text>"#,
-            top + ph,
-            top + ph + 16.0,
-            esc(&text)
-        );
-    }
-    for t in y.ticks() {
-        let py = sy(t);
-        let _ = write!(
-            out,
-            r#"<line class="grid" x1="{LEFT}" y1="{py:.1}" x2="{:.1}" y2="{py:.1}"/><text class="tk" x="{:.1}" y="{:.1}" text-anchor="end">{}</text>"#,
-            LEFT + pw,
-            LEFT - 6.0,
-            py + 4.0,
-            tick_text(t, y.log)
-        );
-    }
-    let _ = write!(
-        out,
-        r#"<text class="al" x="{:.1}" y="{:.1}" text-anchor="middle">{}</text><text class="al" transform="translate(16 {:.1}) rotate(-90)" text-anchor="middle">{}</text>"#,
-        LEFT + pw / 2.0,
-        h - 12.0,
-        esc(&x.label),
-        top + ph / 2.0,
-        esc(&y.label)
-    );
-    for g in guides {
-        let py = sy(g.y);
-        let (lx, anchor) = if g.at_left {
-            (LEFT + 4.0, "start")
-        } else {
-            (LEFT + pw - 4.0, "end")
-        };
-        let _ = write!(
-            out,
-            r#"<line class="guide" x1="{LEFT}" y1="{py:.1}" x2="{:.1}" y2="{py:.1}"/><text class="gl" x="{lx:.1}" y="{:.1}" text-anchor="{anchor}">{}</text>"#,
-            LEFT + pw,
-            py - 4.0,
-            esc(&g.label)
-        );
-    }
+    plot.frame(&mut out);
+    plot.guides(&mut out, guides);
     for (i, s) in series.iter().enumerate() {
+        plot.series(&mut out, i, s);
+    }
+    if legend_rows > 0 {
+        legend(&mut out, series);
+    }
+    out.push_str("</svg>");
+    out
+}
+
+/// The plotting area of one chart and its two axes.
+struct Plot<'a> {
+    top: f64,
+    h: f64,
+    pw: f64,
+    ph: f64,
+    x: &'a Axis,
+    y: &'a Axis,
+}
+
+impl Plot<'_> {
+    fn sx(&self, v: f64) -> f64 {
+        LEFT + self.x.frac(v).clamp(-0.02, 1.02) * self.pw
+    }
+
+    fn sy(&self, v: f64) -> f64 {
+        self.top + (1.0 - self.y.frac(v).clamp(-0.02, 1.02)) * self.ph
+    }
+
+    /// Frame, grid, ticks and axis labels.
+    fn frame(&self, out: &mut String) {
+        let (top, pw, ph, h) = (self.top, self.pw, self.ph, self.h);
+        let (x, y) = (self.x, self.y);
+        let _ = write!(
+            out,
+            r#"<rect class="frame" x="{LEFT}" y="{top}" width="{pw}" height="{ph}"/>"#
+        );
+        let xt: Vec<(f64, String)> = if x.names.is_empty() {
+            x.ticks()
+                .into_iter()
+                .map(|t| (t, tick_text(t, x.log)))
+                .collect()
+        } else {
+            x.names.clone()
+        };
+        for (t, text) in xt {
+            let px = self.sx(t);
+            let _ = write!(
+                out,
+                r#"<line class="grid" x1="{px:.1}" y1="{top}" x2="{px:.1}" y2="{:.1}"/><text class="tk" x="{px:.1}" y="{:.1}" text-anchor="middle">{}</text>"#,
+                top + ph,
+                top + ph + 16.0,
+                esc(&text)
+            );
+        }
+        for t in y.ticks() {
+            let py = self.sy(t);
+            let _ = write!(
+                out,
+                r#"<line class="grid" x1="{LEFT}" y1="{py:.1}" x2="{:.1}" y2="{py:.1}"/><text class="tk" x="{:.1}" y="{:.1}" text-anchor="end">{}</text>"#,
+                LEFT + pw,
+                LEFT - 6.0,
+                py + 4.0,
+                tick_text(t, y.log)
+            );
+        }
+        let _ = write!(
+            out,
+            r#"<text class="al" x="{:.1}" y="{:.1}" text-anchor="middle">{}</text><text class="al" transform="translate(16 {:.1}) rotate(-90)" text-anchor="middle">{}</text>"#,
+            LEFT + pw / 2.0,
+            h - 12.0,
+            esc(&x.label),
+            top + ph / 2.0,
+            esc(&y.label)
+        );
+    }
+
+    /// Horizontal guide lines with their labels.
+    fn guides(&self, out: &mut String, guides: &[Guide]) {
+        let pw = self.pw;
+        for g in guides {
+            let py = self.sy(g.y);
+            let (lx, anchor) = if g.at_left {
+                (LEFT + 4.0, "start")
+            } else {
+                (LEFT + pw - 4.0, "end")
+            };
+            let _ = write!(
+                out,
+                r#"<line class="guide" x1="{LEFT}" y1="{py:.1}" x2="{:.1}" y2="{py:.1}"/><text class="gl" x="{lx:.1}" y="{:.1}" text-anchor="{anchor}">{}</text>"#,
+                LEFT + pw,
+                py - 4.0,
+                esc(&g.label)
+            );
+        }
+    }
+
+    /// One series: its line, interval bars and markers, each point with a tooltip.
+    fn series(&self, out: &mut String, i: usize, s: &Series) {
+        let x = self.x;
         let _ = write!(
             out,
             r#"<g class="series s{i}" aria-label="{}">"#,
@@ -311,15 +358,15 @@ pub fn chart(
             let d: Vec<String> = s
                 .points
                 .iter()
-                .map(|p| format!("{:.1},{:.1}", sx(p.x), sy(p.y)))
+                .map(|p| format!("{:.1},{:.1}", self.sx(p.x), self.sy(p.y)))
                 .collect();
             let _ = write!(out, r#"<polyline class="ln" points="{}"/>"#, d.join(" "));
         }
         for p in &s.points {
-            let (px, py) = (sx(p.x), sy(p.y));
+            let (px, py) = (self.sx(p.x), self.sy(p.y));
             let _ = write!(out, r#"<g class="pt" data-x="{}" data-y="{}">"#, p.x, p.y);
             if let Some((lo, hi)) = p.interval {
-                let (a, b) = (sy(lo), sy(hi));
+                let (a, b) = (self.sy(lo), self.sy(hi));
                 let _ = write!(
                     out,
                     r#"<path class="bar" d="M{px:.1} {a:.1}V{b:.1}M{:.1} {a:.1}h8M{:.1} {b:.1}h8"/>"#,
@@ -327,7 +374,7 @@ pub fn chart(
                     px - 4.0
                 );
             }
-            marker(&mut out, s.mark, px, py);
+            marker(out, s.mark, px, py);
             let _ = write!(
                 out,
                 "<title>{}: {} = {}, {}</title></g>",
@@ -342,23 +389,22 @@ pub fn chart(
         }
         out.push_str("</g>");
     }
-    // Legend in rows of its own between the title and the plot, with the same markers.
-    if legend_rows > 0 {
-        for (i, s) in series.iter().enumerate() {
-            let ly = TOP0 - 4.0 + LEGEND_ROW * i as f64;
-            let lx = LEFT + 8.0;
-            let _ = write!(out, r#"<g class="series s{i} legend">"#);
-            marker(&mut out, s.mark, lx, ly - 4.0);
-            let _ = write!(
-                out,
-                r#"</g><text class="lg" x="{:.1}" y="{ly:.1}">{}</text>"#,
-                lx + 10.0,
-                esc(&s.name)
-            );
-        }
+}
+
+/// The legend, in rows of its own between the title and the plot, with the same markers.
+fn legend(out: &mut String, series: &[Series]) {
+    for (i, s) in series.iter().enumerate() {
+        let ly = TOP0 - 4.0 + LEGEND_ROW * i as f64;
+        let lx = LEFT + 8.0;
+        let _ = write!(out, r#"<g class="series s{i} legend">"#);
+        marker(out, s.mark, lx, ly - 4.0);
+        let _ = write!(
+            out,
+            r#"</g><text class="lg" x="{:.1}" y="{ly:.1}">{}</text>"#,
+            lx + 10.0,
+            esc(&s.name)
+        );
     }
-    out.push_str("</svg>");
-    out
 }
 
 #[cfg(test)]

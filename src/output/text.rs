@@ -1,6 +1,6 @@
-//! The reports as text for a 100-column terminal (profile, intake, sweep, comparisons) and the
-//! small JSON documents of the commands that have no schema of their own. Numbers go through
-//! [`crate::output::number`], as in the HTML page.
+//! The reports as text for a 100-column terminal: intake, profile and sweep (comparisons are in
+//! [`crate::output::changes`]). Numbers go through [`crate::output::number`], as in the HTML
+//! page.
 
 use std::fmt::Write as _;
 
@@ -18,7 +18,7 @@ const TEXT_WIDTH: usize = 87;
 
 /// A labelled row; long text continues on indented lines, broken between " · " parts where it
 /// can and between words otherwise.
-fn row(out: &mut String, label: &str, text: impl AsRef<str>) {
+pub(crate) fn row(out: &mut String, label: &str, text: impl AsRef<str>) {
     let mut lines: Vec<String> = vec![String::new()];
     for part in text.as_ref().split(" · ") {
         let last = lines.last_mut().expect("one line");
@@ -154,8 +154,15 @@ pub fn intake_text(g: &Graph, command: &str) -> String {
             ),
         );
     }
+    graph_rows(&mut out, g);
+    out
+}
+
+/// The graph built: size, degrees, the store's footprint and the stage timings.
+fn graph_rows(out: &mut String, g: &Graph) {
+    let i = &g.intake;
     row(
-        &mut out,
+        out,
         "graph",
         format!(
             "{} nodes · {} edges · {} isolated nodes",
@@ -166,7 +173,7 @@ pub fn intake_text(g: &Graph, command: &str) -> String {
     );
     let d = g.degree_summary();
     row(
-        &mut out,
+        out,
         "degree",
         format!(
             "min {} · mean {:.2} · max {}",
@@ -178,7 +185,7 @@ pub fn intake_text(g: &Graph, command: &str) -> String {
     let n = g.node_count().max(1) as f64;
     let m = g.edge_count().max(1) as f64;
     row(
-        &mut out,
+        out,
         "store",
         format!(
             "{} resident: {:.1} B per edge + {:.1} B per node (offsets and ids){}",
@@ -199,15 +206,14 @@ pub fn intake_text(g: &Graph, command: &str) -> String {
             .map(|s| format!("{} {:.2} s", s.name, s.seconds))
             .collect();
         row(
-            &mut out,
+            out,
             "time",
             format!("{} = {:.2} s", parts.join(" · "), i.total_seconds()),
         );
     }
-    out
 }
 
-fn section(out: &mut String, title: &str) {
+pub(crate) fn section(out: &mut String, title: &str) {
     let _ = writeln!(out, "  ── {title}");
 }
 
@@ -571,24 +577,7 @@ fn method_text(out: &mut String, p: &Profile, per_node: Option<&std::path::Path>
     }
 }
 
-/// Version of the small JSON documents below (`plumb-intake`, `plumb-sweep`, `plumb-track`,
-/// `plumb-comparison`); bumped on any change that could break a reader.
-pub const DOCUMENT_VERSION: u32 = 1;
-
-/// Any result as pretty JSON under `key`, with the document's schema name (`plumb-KEY`), its
-/// version and plumb's version.
-pub fn to_json<T: serde::Serialize>(key: &str, value: &T) -> String {
-    let v = serde_json::json!({
-        "schema": format!("plumb-{key}"),
-        "schema_version": DOCUMENT_VERSION,
-        "plumb_version": env!("CARGO_PKG_VERSION"),
-        key: value,
-    });
-    let mut s = serde_json::to_string_pretty(&v).unwrap_or_default();
-    s.push('\n');
-    s
-}
-
+/// The Watts–Strogatz sweep as a table, with each ratio's interval half-width.
 pub fn sweep_text(s: &crate::models::sweep::Sweep) -> String {
     let mut out = String::new();
     let graphs = s.rows.first().map_or(0, |r| r.graphs);
@@ -631,148 +620,4 @@ pub fn sweep_text(s: &crate::models::sweep::Sweep) -> String {
         );
     }
     out
-}
-
-pub fn drift_text(
-    d: &crate::monitor::drift::Drift,
-    churn: Option<&crate::monitor::drift::ExactChurn>,
-) -> String {
-    let mut out = String::new();
-    let _ = writeln!(out, "  ── {} → {}", d.before, d.after);
-    row(
-        &mut out,
-        "verdict",
-        format!(
-            "{} alert{} · {}",
-            d.alerts,
-            if d.alerts == 1 { "" } else { "s" },
-            if d.tested == 0 {
-                "every figure exact: any difference is real, thresholds decide".to_string()
-            } else {
-                format!(
-                    "{} estimated figures tested at {:.0}% family-wise",
-                    d.tested,
-                    100.0 * d.level
-                )
-            }
-        ),
-    );
-    for c in &d.changes {
-        change_row(&mut out, c, d.level);
-    }
-    if let Some(ch) = churn {
-        row(
-            &mut out,
-            "churn",
-            format!(
-                "nodes +{} −{} ({} kept) · edges +{} −{} ({} kept), by original id",
-                count(ch.nodes_appeared),
-                count(ch.nodes_vanished),
-                count(ch.nodes_kept),
-                count(ch.edges_appeared),
-                count(ch.edges_vanished),
-                count(ch.edges_kept)
-            ),
-        );
-    }
-    out
-}
-
-pub fn sketch_churn_text(c: &crate::estimate::sketch::Churn) -> String {
-    let mut out = String::new();
-    let f = |x: &Figure| match x.interval() {
-        Some(iv) => format!(
-            "{} ({}–{})",
-            count(x.value().round() as u64),
-            count(iv.low.max(0.0).round() as u64),
-            count(iv.high.round() as u64)
-        ),
-        None => count(x.value().round() as u64),
-    };
-    row(
-        &mut out,
-        "churn",
-        format!(
-            "nodes +{} −{} · edges +{} −{} (estimated from the reports' id sketches, {:.0}% intervals)",
-            f(&c.appeared_nodes),
-            f(&c.vanished_nodes),
-            f(&c.appeared_edges),
-            f(&c.vanished_edges),
-            100.0 * c.appeared_nodes.interval().map_or(0.95, |i| i.level)
-        ),
-    );
-    out
-}
-
-/// One figure's change, worded by what it means: the same, within its minimum effect, beyond it
-/// but within the sampling error, or an alert. Values print with the digits that tell them apart.
-fn change_row(out: &mut String, c: &crate::monitor::drift::Change, level: f64) {
-    use crate::monitor::drift::{Threshold, Verdict};
-    use crate::output::number::{places_for, plain, signed};
-    let diff = &c.difference;
-    let places = places_for(diff.value(), 4);
-    let iv = match (&diff.method(), diff.interval()) {
-        (Method::Estimate { .. }, Some(iv)) => {
-            format!(" (interval {} to {})", signed(iv.low), signed(iv.high))
-        }
-        _ => " (exact)".to_string(),
-    };
-    let min = match c.threshold {
-        Threshold::Absolute(t) => format!("{t}"),
-        Threshold::Relative(t) => format!("{}%", 100.0 * t),
-    };
-    let (label, meaning) = match c.verdict {
-        Verdict::Same => ("same", "no difference".to_string()),
-        Verdict::WithinThreshold => ("within", format!("within the minimum effect {min}")),
-        Verdict::BeyondThresholdNotSignificant => (
-            "unsettled",
-            format!(
-                "beyond the minimum effect {min}, but not significant at {:.0}%",
-                100.0 * level
-            ),
-        ),
-        Verdict::Alert if diff.is_exact() => ("ALERT", format!("beyond the minimum effect {min}")),
-        Verdict::Alert => (
-            "ALERT",
-            format!(
-                "beyond the minimum effect {min} and significant at {:.0}%",
-                100.0 * level
-            ),
-        ),
-    };
-    let text = if c.verdict == Verdict::Same {
-        format!("{}: {} · {meaning}", c.label, plain(c.before, places))
-    } else {
-        format!(
-            "{}: {} → {} · {}{iv} · {meaning}",
-            c.label,
-            plain(c.before, places),
-            plain(c.after, places),
-            signed(diff.value())
-        )
-    };
-    row(out, label, text);
-}
-
-pub fn intake_json(g: &Graph) -> String {
-    #[derive(serde::Serialize)]
-    struct Out<'a> {
-        schema: &'static str,
-        schema_version: u32,
-        plumb_version: &'static str,
-        intake: &'a crate::store::intake::Intake,
-        degree: crate::store::graph::DegreeSummary,
-        store_bytes: u64,
-    }
-    let out = Out {
-        schema: "plumb-intake",
-        schema_version: DOCUMENT_VERSION,
-        plumb_version: env!("CARGO_PKG_VERSION"),
-        intake: &g.intake,
-        degree: g.degree_summary(),
-        store_bytes: g.store_bytes(),
-    };
-    let mut s = serde_json::to_string_pretty(&out).unwrap_or_default();
-    s.push('\n');
-    s
 }

@@ -193,6 +193,17 @@ struct Giant<'a> {
     levels: u64,
 }
 
+/// How an estimator ran: the figures it gives and how it describes itself.
+struct Estimated {
+    mean: Figure,
+    effective_diameter: Figure,
+    distribution: Vec<Figure>,
+    sources: Option<u64>,
+    registers: Option<u32>,
+    counter_rse: Option<f64>,
+    method: String,
+}
+
 /// Distances of the connected `sub` by the sampled-source or HyperBall estimator, whichever the
 /// options ask for or is predicted cheaper for the requested precision.
 fn estimate_distances(
@@ -201,20 +212,20 @@ fn estimate_distances(
     clock: &mut Clock,
     ap_secs: f64,
 ) -> (EstimatedDistances, Decision) {
-    let Giant {
-        csr: sub,
-        node_set,
-        unreachable,
-        levels,
-    } = *giant;
+    let sub = giant.csr;
     let (sn, sm) = (sub.node_count() as u64, sub.edge_count());
-    let threads = opts.threads;
     let registers = 1u64 << opts.ball.log2_registers;
     // HyperBall runs about as many rounds as the diameter, of which the sweep gives a bound.
     let ball_secs = seconds(
-        ball_work(sn, sm, registers, levels + 1, opts.ball.repeats as u64),
+        ball_work(
+            sn,
+            sm,
+            registers,
+            giant.levels + 1,
+            opts.ball.repeats as u64,
+        ),
         opts.rates.ball_bytes,
-        threads,
+        opts.threads,
     );
     let mut pilot = None;
     let use_ball = match opts.distance_estimator {
@@ -224,104 +235,117 @@ fn estimate_distances(
             clock.start(StageName::SampledDistances);
             let p = sampled::pilot(sub, opts.level, opts.max_sources, opts.seed);
             let k = p.sources_needed(opts.distance_tolerance, opts.level) as u64;
-            let src_secs = seconds(bfs_work(k, sn, sm, levels), opts.rates.bfs_words, threads);
+            let work = bfs_work(k, sn, sm, giant.levels);
+            let src_secs = seconds(work, opts.rates.bfs_words, opts.threads);
             pilot = Some((p, src_secs));
             ball_secs < src_secs
         }
     };
-    let what = why(
+    let mut reason = why(
         opts.distances,
         false,
         "all-pairs BFS",
         ap_secs,
         opts.exact_seconds,
     );
-    // Each estimator gives its figures and how it describes itself; the result is built once.
-    let (est, method, reason) = if use_ball {
-        clock.start(StageName::HyperBall);
-        let ball = BallOptions {
-            level: opts.level,
-            seed: opts.seed,
-            ..opts.ball
+    if let Some((_, src_secs)) = &pilot {
+        let ((chosen, chosen_secs), (rival, rival_secs)) = if use_ball {
+            (("HyperBall", ball_secs), ("sampled sources", *src_secs))
+        } else {
+            (("sampled sources", *src_secs), ("HyperBall", ball_secs))
         };
-        let e = hyperball::estimate(sub, &ball, &|_| clock.progress.advance(1));
-        clock.done(StageName::HyperBall);
-        let mut reason = what;
-        if let Some((_, src)) = &pilot {
-            reason += &format!(
-                "; HyperBall predicted {} against {} for sampled sources",
-                secs(ball_secs),
-                secs(*src)
-            );
-        }
-        let method = format!(
-            "HyperBall, {} registers per node × {} hash seeds (each counter ±{:.1}% relative \
-             standard error)",
-            e.registers,
-            opts.ball.repeats,
-            100.0 * e.counter_rse
+        reason += &format!(
+            "; {chosen} predicted {} against {} for {rival}",
+            secs(chosen_secs),
+            secs(rival_secs)
         );
-        let est = EstimatedDistances {
-            node_set: node_set.to_string(),
-            nodes: sn,
-            mean: e.mean,
-            effective_diameter: e.effective_diameter,
-            distribution: e.distribution,
-            unreachable_pairs_in_graph: unreachable,
-            sources: None,
-            registers: Some(e.registers),
-            counter_rse: Some(e.counter_rse),
-        };
-        (est, method, reason)
+    }
+    let e = if use_ball {
+        by_ball(sub, opts, clock)
     } else {
-        let (e, reason) = match pilot {
-            Some((p, src_secs)) => {
-                let e = p.finish(sub, opts.distance_tolerance, opts.level, opts.seed);
-                let reason = format!(
-                    "{what}; sampled sources predicted {} against {} for HyperBall",
-                    secs(src_secs),
-                    secs(ball_secs)
-                );
-                (e, reason)
-            }
-            None => {
-                clock.start(StageName::SampledDistances);
-                let e = sampled::estimate_to_precision(
-                    sub,
-                    opts.distance_tolerance,
-                    opts.level,
-                    opts.max_sources,
-                    opts.seed,
-                );
-                (e, what)
-            }
-        };
-        clock.done(StageName::SampledDistances);
-        let method = format!(
-            "BFS from {} sampled sources, to ±{}% of the mean at {}%",
-            e.sources,
-            100.0 * opts.distance_tolerance,
-            100.0 * opts.level
-        );
-        let est = EstimatedDistances {
-            node_set: node_set.to_string(),
-            nodes: sn,
-            mean: e.mean,
-            effective_diameter: e.effective_diameter,
-            distribution: e.distribution,
-            unreachable_pairs_in_graph: unreachable,
-            sources: Some(e.sources),
-            registers: None,
-            counter_rse: None,
-        };
-        (est, method, reason)
+        by_sources(sub, pilot.map(|(p, _)| p), opts, clock)
+    };
+    let est = EstimatedDistances {
+        node_set: giant.node_set.to_string(),
+        nodes: sn,
+        mean: e.mean,
+        effective_diameter: e.effective_diameter,
+        distribution: e.distribution,
+        unreachable_pairs_in_graph: giant.unreachable,
+        sources: e.sources,
+        registers: e.registers,
+        counter_rse: e.counter_rse,
     };
     let decision = Decision {
         group: Group::Distances,
-        method,
+        method: e.method,
         exact_seconds: ap_secs,
         budget_seconds: (opts.distances == Choice::Auto).then_some(opts.exact_seconds),
         reason,
     };
     (est, decision)
+}
+
+/// HyperBall with independent hash seeds, jackknife intervals.
+fn by_ball(sub: &Csr, opts: &ProfileOptions, clock: &mut Clock) -> Estimated {
+    clock.start(StageName::HyperBall);
+    let ball = BallOptions {
+        level: opts.level,
+        seed: opts.seed,
+        ..opts.ball
+    };
+    let e = hyperball::estimate(sub, &ball, &|_| clock.progress.advance(1));
+    clock.done(StageName::HyperBall);
+    Estimated {
+        method: format!(
+            "HyperBall, {} registers per node × {} hash seeds (each counter ±{:.1}% relative \
+             standard error)",
+            e.registers,
+            opts.ball.repeats,
+            100.0 * e.counter_rse
+        ),
+        mean: e.mean,
+        effective_diameter: e.effective_diameter,
+        distribution: e.distribution,
+        sources: None,
+        registers: Some(e.registers),
+        counter_rse: Some(e.counter_rse),
+    }
+}
+
+/// BFS from sampled sources to the requested margin, finishing the planner's pilot if it ran.
+fn by_sources(
+    sub: &Csr,
+    pilot: Option<sampled::Pilot>,
+    opts: &ProfileOptions,
+    clock: &mut Clock,
+) -> Estimated {
+    let e = match pilot {
+        Some(p) => p.finish(sub, opts.distance_tolerance, opts.level, opts.seed),
+        None => {
+            clock.start(StageName::SampledDistances);
+            sampled::estimate_to_precision(
+                sub,
+                opts.distance_tolerance,
+                opts.level,
+                opts.max_sources,
+                opts.seed,
+            )
+        }
+    };
+    clock.done(StageName::SampledDistances);
+    Estimated {
+        method: format!(
+            "BFS from {} sampled sources, to ±{}% of the mean at {}%",
+            e.sources,
+            100.0 * opts.distance_tolerance,
+            100.0 * opts.level
+        ),
+        mean: e.mean,
+        effective_diameter: e.effective_diameter,
+        distribution: e.distribution,
+        sources: Some(e.sources),
+        registers: None,
+        counter_rse: None,
+    }
 }

@@ -5,23 +5,25 @@
 //! (pipelined with parsing) and its integer edges are kept compactly between the passes, so the
 //! decoder, the slowest stage, runs once. Files with text ids take an extra tally pass.
 
+mod int_pass;
+mod text_pass;
+
 use std::borrow::Cow;
 use std::path::Path;
-use std::sync::atomic::{AtomicBool, AtomicU64, Ordering};
 use std::time::Instant;
 
 use rayon::prelude::*;
 
-use crate::error::{Error, Position, Result, excerpt};
+use crate::error::{Error, Position, Result};
 use crate::progress::{Progress, Unit};
 use crate::read::edgeline::{self, Line};
 use crate::read::mtx::{self, Header as MtxHeader};
-use crate::read::pieces::{self, Source};
+use crate::read::pieces::Source;
 use crate::read::scan::{self, ChunkOutcome, Counts, LineError, MtxRules, ScanRules};
 use crate::read::source::{self, Compression, InputBytes, Sniffed, StreamFault};
 use crate::store::fill::Filler;
 use crate::store::graph::{Graph, NodeIds};
-use crate::store::ids::{self, IndexFault, IntIndex, IntTally, TextIndex, TextTally};
+use crate::store::ids::{self, IndexFault};
 use crate::store::intake::{BadLine, FirstTextId, IdKind, InputFormat, Intake, Stage, StageName};
 
 /// Which grammar to read the input with.
@@ -272,210 +274,6 @@ impl<'a> Loader<'a> {
         self.progress.stage(name, total, Unit::Bytes);
     }
 
-    fn run(mut self) -> Result<Graph> {
-        // Pass 1: integer ids (the fast path). Compressed input keeps its edges for pass 2.
-        let keep = self.src.compression != Compression::None;
-        // Flat id arrays grow to the largest id seen, up to a cap tied to the input size and the
-        // memory budget; larger ids go to a hash map.
-        let per_worker = self.opts.memory_budget / 4 / (4 * self.threads as u64);
-        let cap = match &self.mtx {
-            Some(h) => h.rows + 1,
-            None => (self.src.data.len() as u64 * if keep { 16 } else { 4 })
-                .min(per_worker)
-                .max(1 << 16),
-        };
-        // Compressed input keeps its edges; a decompression bomb must not exhaust memory.
-        let kept_bytes = AtomicU64::new(0);
-        let over_budget = AtomicBool::new(false);
-        let keep_limit = self.opts.memory_budget / 2;
-        self.begin("scanning");
-        let rules = self.rules.clone();
-        let (states, info) = pieces::run(
-            self.src,
-            self.threads,
-            self.progress,
-            || IntWorker {
-                tally: IntTally::new(cap),
-                outcomes: Vec::new(),
-                kept: Vec::new(),
-            },
-            |w, index, bytes, base| {
-                let go_on = w.scan(index, bytes, base, &rules, keep);
-                if keep {
-                    let added = w.kept.last().map_or(0, |(_, r)| r.bytes());
-                    if kept_bytes.fetch_add(added, Ordering::Relaxed) + added > keep_limit {
-                        over_budget.store(true, Ordering::Relaxed);
-                        return false;
-                    }
-                }
-                go_on
-            },
-        )
-        .map_err(|f| self.stream_fault(f, &[]))?;
-        let mut outcomes = Vec::new();
-        let mut tallies = Vec::new();
-        let mut kept = Vec::new();
-        for w in states {
-            outcomes.extend(w.outcomes);
-            tallies.push(w.tally);
-            kept.extend(w.kept);
-        }
-        let scanned = self.check(outcomes, info)?;
-        self.stage_done(StageName::Scan);
-        if scanned.outcomes.iter().any(|o| o.stopped) {
-            drop((tallies, kept));
-            // Only edge lists stop: Matrix Market entries are checked as integers before.
-            return self.run_text();
-        }
-
-        self.progress.stage("indexing ids", None, Unit::Items);
-        if over_budget.load(Ordering::Relaxed) {
-            // The kept edges and the adjacency built from them live together: about twice.
-            return Err(self.over_budget(
-                "building from the decompressed edges",
-                2 * kept_bytes.load(Ordering::Relaxed),
-            ));
-        }
-        let index = IntIndex::build(tallies, self.mtx.as_ref().map(|h| h.rows), self.max_nodes())
-            .map_err(|f| self.index_fault(f))?;
-        self.stage_done(StageName::IndexIds);
-
-        self.check_fill_budget(&index.raw_degree)?;
-        let filler = Filler::new(&index.raw_degree);
-        if keep {
-            self.progress.stage("filling", None, Unit::Items);
-            kept.par_iter().for_each(|(_, raw)| {
-                let mut dense = Vec::with_capacity(FILL_BATCH);
-                let mut put = |a: u64, b: u64| {
-                    dense.push((index.get(a), index.get(b)));
-                    if dense.len() == FILL_BATCH {
-                        filler.edges(&dense);
-                        dense.clear();
-                    }
-                };
-                match raw {
-                    Raw::Narrow(v) => v
-                        .chunks_exact(2)
-                        .for_each(|p| put(p[0] as u64, p[1] as u64)),
-                    Raw::Wide(v) => v.chunks_exact(2).for_each(|p| put(p[0], p[1])),
-                }
-                filler.edges(&dense);
-            });
-            drop(kept);
-        } else {
-            self.begin("filling");
-            let rules = &self.rules;
-            pieces::run(
-                self.src,
-                self.threads,
-                self.progress,
-                || (),
-                |_, i, bytes, base| {
-                    // Parse a batch, then map and store it in a tight loop: the random writes
-                    // overlap far better than when interleaved with parsing.
-                    let mut batch: Vec<(u64, u64)> = Vec::with_capacity(FILL_BATCH);
-                    let mut dense: Vec<(u32, u32)> = Vec::with_capacity(FILL_BATCH);
-                    let mut flush = |batch: &mut Vec<(u64, u64)>| {
-                        dense.clear();
-                        dense.extend(batch.iter().map(|&(a, b)| (index.get(a), index.get(b))));
-                        filler.edges(&dense);
-                        batch.clear();
-                    };
-                    scan::scan_chunk(i, bytes, base, rules, |a, b| {
-                        if let (Some(a), Some(b)) = (a.int, b.int)
-                            && a != b
-                        {
-                            batch.push((a, b));
-                            if batch.len() == FILL_BATCH {
-                                flush(&mut batch);
-                            }
-                        }
-                        true
-                    });
-                    flush(&mut batch);
-                    true
-                },
-            )
-            .map_err(|f| self.stream_fault(f, &scanned.outcomes))?;
-        }
-        self.stage_done(StageName::Fill);
-        let ids = NodeIds::from_ints(index.into_ids());
-        self.finish(filler, ids, IdKind::Integer, scanned)
-    }
-
-    /// Text ids: tally tokens, then fill (each pass re-reads the text).
-    fn run_text(mut self) -> Result<Graph> {
-        self.rules.text_ids = true;
-        self.begin("scanning text ids");
-        let rules = self.rules.clone();
-        let (states, info) = pieces::run(
-            self.src,
-            self.threads,
-            self.progress,
-            || (TextTally::default(), Vec::new(), Vec::new()),
-            |(t, outcomes, firsts), i, bytes, base| {
-                let mut first = None;
-                let o = scan::scan_chunk(i, bytes, base, &rules, |a, b| {
-                    if first.is_none()
-                        && let Some(tok) = [a, b].into_iter().find(|t| t.int.is_none())
-                    {
-                        first =
-                            Some((tok.raw.as_ptr() as usize - bytes.as_ptr() as usize, tok.raw));
-                    }
-                    t.edge(a.raw, b.raw);
-                    true
-                });
-                if let Some((at, raw)) = first {
-                    // Lines of this piece before the id (0-based), counted once per piece.
-                    let line = memchr::memchr_iter(b'\n', &bytes[..at]).count() as u64;
-                    firsts.push((i, line, base + at as u64, excerpt(raw)));
-                }
-                let go_on = o.error.is_none();
-                outcomes.push(o);
-                go_on
-            },
-        )
-        .map_err(|f| self.stream_fault(f, &[]))?;
-        let mut tallies = Vec::new();
-        let mut outcomes = Vec::new();
-        let mut firsts = Vec::new();
-        for (t, o, f) in states {
-            tallies.push(t);
-            outcomes.extend(o);
-            firsts.extend(f);
-        }
-        let scanned = self.check(outcomes, info)?;
-        self.first_text_id = self.place_first_text_id(&scanned, firsts);
-        let index = TextIndex::build(tallies, self.max_nodes()).map_err(|f| self.index_fault(f))?;
-        self.stage_done(StageName::IndexIds);
-
-        self.check_fill_budget(&index.raw_degree)?;
-        let filler = Filler::new(&index.raw_degree);
-        self.begin("filling");
-        pieces::run(
-            self.src,
-            self.threads,
-            self.progress,
-            || (),
-            |_, i, bytes, base| {
-                scan::scan_chunk(i, bytes, base, &rules, |a, b| {
-                    if a.raw != b.raw {
-                        filler.edge(index.get(a.raw), index.get(b.raw));
-                    }
-                    true
-                });
-                true
-            },
-        )
-        .map_err(|f| self.stream_fault(f, &scanned.outcomes))?;
-        self.stage_done(StageName::Fill);
-        let ids = NodeIds::Text {
-            offsets: index.offsets.into(),
-            bytes: index.bytes.into(),
-        };
-        self.finish(filler, ids, IdKind::Text, scanned)
-    }
-
     fn finish(
         mut self,
         filler: Filler,
@@ -577,29 +375,6 @@ impl<'a> Loader<'a> {
             stages: std::mem::take(&mut self.stages),
         };
         Ok(Graph { csr, ids, intake })
-    }
-
-    /// The earliest of the pieces' first text ids, with its line in the whole text.
-    fn place_first_text_id(
-        &self,
-        scanned: &Scanned,
-        mut firsts: Vec<(usize, u64, u64, String)>,
-    ) -> Option<FirstTextId> {
-        firsts.sort_by_key(|f| f.0);
-        let (piece, line, byte, id) = firsts.into_iter().next()?;
-        let before: u64 = scanned
-            .outcomes
-            .iter()
-            .filter(|o| o.index < piece)
-            .map(|o| o.counts.lines)
-            .sum();
-        let header = self.mtx.as_ref().map_or(0, |h| h.lines_before_body);
-        Some(FirstTextId {
-            integer_too_large: id.bytes().all(|c| c.is_ascii_digit()),
-            id,
-            line: header + before + line + 1,
-            byte,
-        })
     }
 
     /// Order outcomes, turn the first error into a positioned message, check Matrix Market
@@ -768,80 +543,6 @@ fn describe(e: &LineError) -> String {
         LineError::Malformed { problem, .. } => problem.clone(),
         LineError::TooLong => "line too long".into(),
         LineError::Mtx(p) => p.clone(),
-    }
-}
-
-/// Integer edges kept between passes for compressed input (pairs, flattened).
-enum Raw {
-    Narrow(Vec<u32>),
-    Wide(Vec<u64>),
-}
-
-impl Raw {
-    fn bytes(&self) -> u64 {
-        match self {
-            Raw::Narrow(v) => v.len() as u64 * 4,
-            Raw::Wide(v) => v.len() as u64 * 8,
-        }
-    }
-
-    #[inline]
-    fn push(&mut self, a: u64, b: u64) {
-        match self {
-            Raw::Narrow(v) if (a | b) <= u32::MAX as u64 => {
-                v.push(a as u32);
-                v.push(b as u32);
-            }
-            Raw::Narrow(v) => {
-                let mut w: Vec<u64> = v.iter().map(|&x| x as u64).collect();
-                w.push(a);
-                w.push(b);
-                *self = Raw::Wide(w);
-            }
-            Raw::Wide(v) => {
-                v.push(a);
-                v.push(b);
-            }
-        }
-    }
-}
-
-struct IntWorker {
-    tally: IntTally,
-    outcomes: Vec<ChunkOutcome>,
-    kept: Vec<(usize, Raw)>,
-}
-
-impl IntWorker {
-    fn scan(
-        &mut self,
-        index: usize,
-        bytes: &[u8],
-        base: u64,
-        rules: &ScanRules,
-        keep: bool,
-    ) -> bool {
-        let mut raw = Raw::Narrow(Vec::new());
-        let tally = &mut self.tally;
-        let outcome = scan::scan_chunk(index, bytes, base, rules, |a, b| match (a.int, b.int) {
-            (Some(a), Some(b)) => {
-                tally.edge(a, b);
-                if keep && a != b {
-                    raw.push(a, b);
-                }
-                true
-            }
-            _ => false,
-        });
-        let go_on = outcome.error.is_none() && !outcome.stopped;
-        self.outcomes.push(outcome);
-        if keep {
-            if let Raw::Narrow(v) = &mut raw {
-                v.shrink_to_fit();
-            }
-            self.kept.push((index, raw));
-        }
-        go_on
     }
 }
 

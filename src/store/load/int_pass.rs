@@ -1,0 +1,259 @@
+//! The integer-id passes: the fast path for files whose ids are all integers up to 2^64-1.
+
+use std::sync::atomic::{AtomicBool, AtomicU64, Ordering};
+
+use rayon::prelude::*;
+
+use super::{FILL_BATCH, Loader, Scanned};
+use crate::error::Result;
+use crate::progress::Unit;
+use crate::read::pieces;
+use crate::read::scan::{self, ChunkOutcome, ScanRules};
+use crate::read::source::Compression;
+use crate::store::fill::Filler;
+use crate::store::graph::{Graph, NodeIds};
+use crate::store::ids::{IntIndex, IntTally};
+use crate::store::intake::{IdKind, StageName};
+
+/// What pass 1 over integer ids leaves for pass 2.
+struct IntPass {
+    keep: bool,
+    tallies: Vec<IntTally>,
+    kept: Vec<(usize, Raw)>,
+    kept_bytes: u64,
+    over_budget: bool,
+    scanned: Scanned,
+}
+
+impl Loader<'_> {
+    /// Integer ids, the fast path: pass 1 tallies ids and degrees (compressed input keeps its
+    /// edges), pass 2 fills the adjacency; a text id hands over to the text pass.
+    pub(super) fn run(mut self) -> Result<Graph> {
+        match self.scan_ints()? {
+            Some(pass) => self.fill_ints(pass),
+            None => self.run_text(),
+        }
+    }
+
+    /// Pass 1 over integer ids; `None` when a text id turned up.
+    fn scan_ints(&mut self) -> Result<Option<IntPass>> {
+        // Pass 1: integer ids (the fast path). Compressed input keeps its edges for pass 2.
+        let keep = self.src.compression != Compression::None;
+        // Flat id arrays grow to the largest id seen, up to a cap tied to the input size and the
+        // memory budget; larger ids go to a hash map.
+        let per_worker = self.opts.memory_budget / 4 / (4 * self.threads as u64);
+        let cap = match &self.mtx {
+            Some(h) => h.rows + 1,
+            None => (self.src.data.len() as u64 * if keep { 16 } else { 4 })
+                .min(per_worker)
+                .max(1 << 16),
+        };
+        // Compressed input keeps its edges; a decompression bomb must not exhaust memory.
+        let kept_bytes = AtomicU64::new(0);
+        let over_budget = AtomicBool::new(false);
+        let keep_limit = self.opts.memory_budget / 2;
+        self.begin("scanning");
+        let rules = self.rules.clone();
+        let (states, info) = pieces::run(
+            self.src,
+            self.threads,
+            self.progress,
+            || IntWorker {
+                tally: IntTally::new(cap),
+                outcomes: Vec::new(),
+                kept: Vec::new(),
+            },
+            |w, index, bytes, base| {
+                let go_on = w.scan(index, bytes, base, &rules, keep);
+                if keep {
+                    let added = w.kept.last().map_or(0, |(_, r)| r.bytes());
+                    if kept_bytes.fetch_add(added, Ordering::Relaxed) + added > keep_limit {
+                        over_budget.store(true, Ordering::Relaxed);
+                        return false;
+                    }
+                }
+                go_on
+            },
+        )
+        .map_err(|f| self.stream_fault(f, &[]))?;
+        let mut outcomes = Vec::new();
+        let mut tallies = Vec::new();
+        let mut kept = Vec::new();
+        for w in states {
+            outcomes.extend(w.outcomes);
+            tallies.push(w.tally);
+            kept.extend(w.kept);
+        }
+        let scanned = self.check(outcomes, info)?;
+        self.stage_done(StageName::Scan);
+        if scanned.outcomes.iter().any(|o| o.stopped) {
+            // Only edge lists stop: Matrix Market entries are checked as integers before.
+            return Ok(None);
+        }
+        Ok(Some(IntPass {
+            keep,
+            tallies,
+            kept,
+            kept_bytes: kept_bytes.into_inner(),
+            over_budget: over_budget.into_inner(),
+            scanned,
+        }))
+    }
+
+    /// Pass 2 over integer ids: index them, then fill from the kept edges or the text.
+    fn fill_ints(mut self, pass: IntPass) -> Result<Graph> {
+        let IntPass {
+            keep,
+            tallies,
+            kept,
+            kept_bytes,
+            over_budget,
+            scanned,
+        } = pass;
+
+        self.progress.stage("indexing ids", None, Unit::Items);
+        if over_budget {
+            // The kept edges and the adjacency built from them live together: about twice.
+            return Err(self.over_budget("building from the decompressed edges", 2 * kept_bytes));
+        }
+        let index = IntIndex::build(tallies, self.mtx.as_ref().map(|h| h.rows), self.max_nodes())
+            .map_err(|f| self.index_fault(f))?;
+        self.stage_done(StageName::IndexIds);
+
+        self.check_fill_budget(&index.raw_degree)?;
+        let filler = Filler::new(&index.raw_degree);
+        if keep {
+            self.progress.stage("filling", None, Unit::Items);
+            kept.par_iter().for_each(|(_, raw)| {
+                let mut dense = Vec::with_capacity(FILL_BATCH);
+                let mut put = |a: u64, b: u64| {
+                    dense.push((index.get(a), index.get(b)));
+                    if dense.len() == FILL_BATCH {
+                        filler.edges(&dense);
+                        dense.clear();
+                    }
+                };
+                match raw {
+                    Raw::Narrow(v) => v
+                        .chunks_exact(2)
+                        .for_each(|p| put(p[0] as u64, p[1] as u64)),
+                    Raw::Wide(v) => v.chunks_exact(2).for_each(|p| put(p[0], p[1])),
+                }
+                filler.edges(&dense);
+            });
+            drop(kept);
+        } else {
+            self.begin("filling");
+            let rules = &self.rules;
+            pieces::run(
+                self.src,
+                self.threads,
+                self.progress,
+                || (),
+                |_, i, bytes, base| {
+                    // Parse a batch, then map and store it in a tight loop: the random writes
+                    // overlap far better than when interleaved with parsing.
+                    let mut batch: Vec<(u64, u64)> = Vec::with_capacity(FILL_BATCH);
+                    let mut dense: Vec<(u32, u32)> = Vec::with_capacity(FILL_BATCH);
+                    let mut flush = |batch: &mut Vec<(u64, u64)>| {
+                        dense.clear();
+                        dense.extend(batch.iter().map(|&(a, b)| (index.get(a), index.get(b))));
+                        filler.edges(&dense);
+                        batch.clear();
+                    };
+                    scan::scan_chunk(i, bytes, base, rules, |a, b| {
+                        if let (Some(a), Some(b)) = (a.int, b.int)
+                            && a != b
+                        {
+                            batch.push((a, b));
+                            if batch.len() == FILL_BATCH {
+                                flush(&mut batch);
+                            }
+                        }
+                        true
+                    });
+                    flush(&mut batch);
+                    true
+                },
+            )
+            .map_err(|f| self.stream_fault(f, &scanned.outcomes))?;
+        }
+        self.stage_done(StageName::Fill);
+        let ids = NodeIds::from_ints(index.into_ids());
+        self.finish(filler, ids, IdKind::Integer, scanned)
+    }
+}
+
+/// Integer edges kept between passes for compressed input (pairs, flattened).
+enum Raw {
+    Narrow(Vec<u32>),
+    Wide(Vec<u64>),
+}
+
+impl Raw {
+    fn bytes(&self) -> u64 {
+        match self {
+            Raw::Narrow(v) => v.len() as u64 * 4,
+            Raw::Wide(v) => v.len() as u64 * 8,
+        }
+    }
+
+    #[inline]
+    fn push(&mut self, a: u64, b: u64) {
+        match self {
+            Raw::Narrow(v) if (a | b) <= u32::MAX as u64 => {
+                v.push(a as u32);
+                v.push(b as u32);
+            }
+            Raw::Narrow(v) => {
+                let mut w: Vec<u64> = v.iter().map(|&x| x as u64).collect();
+                w.push(a);
+                w.push(b);
+                *self = Raw::Wide(w);
+            }
+            Raw::Wide(v) => {
+                v.push(a);
+                v.push(b);
+            }
+        }
+    }
+}
+
+struct IntWorker {
+    tally: IntTally,
+    outcomes: Vec<ChunkOutcome>,
+    kept: Vec<(usize, Raw)>,
+}
+
+impl IntWorker {
+    fn scan(
+        &mut self,
+        index: usize,
+        bytes: &[u8],
+        base: u64,
+        rules: &ScanRules,
+        keep: bool,
+    ) -> bool {
+        let mut raw = Raw::Narrow(Vec::new());
+        let tally = &mut self.tally;
+        let outcome = scan::scan_chunk(index, bytes, base, rules, |a, b| match (a.int, b.int) {
+            (Some(a), Some(b)) => {
+                tally.edge(a, b);
+                if keep && a != b {
+                    raw.push(a, b);
+                }
+                true
+            }
+            _ => false,
+        });
+        let go_on = outcome.error.is_none() && !outcome.stopped;
+        self.outcomes.push(outcome);
+        if keep {
+            if let Raw::Narrow(v) = &mut raw {
+                v.shrink_to_fit();
+            }
+            self.kept.push((index, raw));
+        }
+        go_on
+    }
+}

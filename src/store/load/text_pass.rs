@@ -1,0 +1,109 @@
+//! The text-id passes: any token is an id, kept verbatim; ids are ranked in sorted order so
+//! results never depend on threads.
+
+use super::{FirstTextId, Loader, Scanned};
+use crate::error::{Result, excerpt};
+use crate::read::pieces;
+use crate::read::scan;
+use crate::store::fill::Filler;
+use crate::store::graph::{Graph, NodeIds};
+use crate::store::ids::{TextIndex, TextTally};
+use crate::store::intake::{IdKind, StageName};
+
+impl Loader<'_> {
+    /// Text ids: tally tokens, then fill (each pass re-reads the text).
+    pub(super) fn run_text(mut self) -> Result<Graph> {
+        self.rules.text_ids = true;
+        self.begin("scanning text ids");
+        let rules = self.rules.clone();
+        let (states, info) = pieces::run(
+            self.src,
+            self.threads,
+            self.progress,
+            || (TextTally::default(), Vec::new(), Vec::new()),
+            |(t, outcomes, firsts), i, bytes, base| {
+                let mut first = None;
+                let o = scan::scan_chunk(i, bytes, base, &rules, |a, b| {
+                    if first.is_none()
+                        && let Some(tok) = [a, b].into_iter().find(|t| t.int.is_none())
+                    {
+                        first =
+                            Some((tok.raw.as_ptr() as usize - bytes.as_ptr() as usize, tok.raw));
+                    }
+                    t.edge(a.raw, b.raw);
+                    true
+                });
+                if let Some((at, raw)) = first {
+                    // Lines of this piece before the id (0-based), counted once per piece.
+                    let line = memchr::memchr_iter(b'\n', &bytes[..at]).count() as u64;
+                    firsts.push((i, line, base + at as u64, excerpt(raw)));
+                }
+                let go_on = o.error.is_none();
+                outcomes.push(o);
+                go_on
+            },
+        )
+        .map_err(|f| self.stream_fault(f, &[]))?;
+        let mut tallies = Vec::new();
+        let mut outcomes = Vec::new();
+        let mut firsts = Vec::new();
+        for (t, o, f) in states {
+            tallies.push(t);
+            outcomes.extend(o);
+            firsts.extend(f);
+        }
+        let scanned = self.check(outcomes, info)?;
+        self.first_text_id = self.place_first_text_id(&scanned, firsts);
+        let index = TextIndex::build(tallies, self.max_nodes()).map_err(|f| self.index_fault(f))?;
+        self.stage_done(StageName::IndexIds);
+
+        self.check_fill_budget(&index.raw_degree)?;
+        let filler = Filler::new(&index.raw_degree);
+        self.begin("filling");
+        pieces::run(
+            self.src,
+            self.threads,
+            self.progress,
+            || (),
+            |_, i, bytes, base| {
+                scan::scan_chunk(i, bytes, base, &rules, |a, b| {
+                    if a.raw != b.raw {
+                        filler.edge(index.get(a.raw), index.get(b.raw));
+                    }
+                    true
+                });
+                true
+            },
+        )
+        .map_err(|f| self.stream_fault(f, &scanned.outcomes))?;
+        self.stage_done(StageName::Fill);
+        let ids = NodeIds::Text {
+            offsets: index.offsets.into(),
+            bytes: index.bytes.into(),
+        };
+        self.finish(filler, ids, IdKind::Text, scanned)
+    }
+
+    /// The earliest of the pieces' first text ids, with its line in the whole text.
+    fn place_first_text_id(
+        &self,
+        scanned: &Scanned,
+        mut firsts: Vec<(usize, u64, u64, String)>,
+    ) -> Option<FirstTextId> {
+        firsts.sort_by_key(|f| f.0);
+        let (piece, line, byte, id) = firsts.into_iter().next()?;
+        let before: u64 = scanned
+            .outcomes
+            .iter()
+            .filter(|o| o.index < piece)
+            .map(|o| o.counts.lines)
+            .sum();
+        let header = self.mtx.as_ref().map_or(0, |h| h.lines_before_body);
+        Some(FirstTextId {
+            integer_too_large: id.bytes().all(|c| c.is_ascii_digit()),
+            id,
+            line: header + before + line + 1,
+            byte,
+        })
+    }
+}
