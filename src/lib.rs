@@ -18,13 +18,14 @@
 //! Start with [`store::load::load`], which reads an edge file (plain, zstd or gzip; edge list or
 //! Matrix Market) or a store file into a [`Graph`], then [`profile::profile`].
 
+
 pub mod error;
 pub mod estimate;
 pub mod exact;
 pub mod figure;
 pub mod models;
 pub mod monitor;
-pub mod numeric;
+pub(crate) mod numeric;
 pub mod outfile;
 pub mod output;
 pub mod profile;

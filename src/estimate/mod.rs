@@ -5,7 +5,7 @@
 pub mod distance;
 pub(crate) mod hll;
 pub mod hyperball;
-pub mod interval;
-pub mod sample;
+pub(crate) mod interval;
+pub(crate) mod sample;
 pub mod sketch;
 pub mod wedges;

@@ -6,5 +6,5 @@ pub mod html;
 pub mod json;
 pub mod number;
 pub mod pernode;
-pub mod svg;
+pub(crate) mod svg;
 pub mod text;

@@ -3,9 +3,13 @@
 //! grammars (pure functions over byte slices, no I/O) and the chunk scanner that applies them.
 //! Uses only `error` and `progress`.
 
-pub mod edgeline;
+pub(crate) mod edgeline;
 pub(crate) mod magic;
-pub mod mtx;
-pub mod pieces;
+pub(crate) mod mtx;
+pub(crate) mod pieces;
+/// The chunk scanner, public for the fuzz targets only (feature `reference`).
+#[cfg(feature = "reference")]
 pub mod scan;
+#[cfg(not(feature = "reference"))]
+pub(crate) mod scan;
 pub mod source;

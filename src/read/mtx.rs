@@ -14,16 +14,6 @@ pub enum Field {
     Real,
 }
 
-impl Field {
-    /// Columns an entry line must have.
-    pub fn columns(self) -> usize {
-        match self {
-            Field::Pattern => 2,
-            Field::Integer | Field::Real => 3,
-        }
-    }
-}
-
 #[derive(Debug, Clone, Copy, PartialEq, Eq)]
 pub enum Symmetry {
     General,

@@ -4,11 +4,13 @@
 
 pub mod csr;
 pub mod file;
-pub mod fill;
+pub(crate) mod fill;
 pub mod graph;
-pub mod ids;
+pub(crate) mod ids;
 pub mod intake;
 pub mod limits;
 pub mod load;
+/// The naive reference reader, for tests and fuzzing (feature `reference`).
+#[cfg(any(test, feature = "reference"))]
 pub mod reference;
-pub mod slab;
+pub(crate) mod slab;
