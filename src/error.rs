@@ -7,7 +7,9 @@ use std::path::PathBuf;
 /// start of that line in the (decompressed) text.
 #[derive(Debug, Clone, PartialEq, Eq)]
 pub struct Position {
+    /// Line of the text, from 1.
     pub line: u64,
+    /// Byte offset from the start of the text.
     pub byte: u64,
     /// The offset counts decompressed bytes.
     pub decoded: bool,
@@ -36,40 +38,67 @@ pub enum ErrorClass {
     Usage,
 }
 
+/// Everything that can go wrong, each with the file and, for bad input, the line and byte
+/// offset.
 #[derive(Debug, thiserror::Error)]
 pub enum Error {
+    /// A file could not be opened, read, mapped or written.
     #[error("{path}: cannot {action}: {source}")]
     Io {
+        /// The file concerned.
         path: PathBuf,
+        /// What was being done ("open", "read", …).
         action: &'static str,
+        /// The operating system's error.
         #[source]
         source: std::io::Error,
     },
 
+    /// A line does not follow the edge-list grammar.
     #[error("{path}: {pos}: {problem}; expected {expected} (line starts: {excerpt:?})")]
     Malformed {
+        /// The input file.
         path: PathBuf,
+        /// Where the line is.
         pos: Position,
+        /// What is wrong with it.
         problem: String,
+        /// What the grammar expects.
         expected: &'static str,
+        /// The line's start, as written.
         excerpt: String,
     },
 
+    /// A line longer than `--max-line`.
     #[error("{path}: {pos}: line is longer than the limit of {limit} bytes")]
     LineTooLong {
+        /// The input file.
         path: PathBuf,
+        /// Where the line starts.
         pos: Position,
+        /// The limit in bytes.
         limit: usize,
     },
 
+    /// The input holds no edges and no nodes.
     #[error("{path}: the input holds no edges and no nodes ({detail})")]
-    Empty { path: PathBuf, detail: String },
+    Empty {
+        /// The input file.
+        path: PathBuf,
+        /// What was found instead of edges.
+        detail: String,
+    },
 
+    /// A compressed stream is damaged or cut short.
     #[error("{path}: {format} stream is {problem} (compressed byte offset {offset})")]
     Compressed {
+        /// The input file.
         path: PathBuf,
+        /// The compression ("zstd", "gzip").
         format: &'static str,
+        /// What the decoder said.
         problem: String,
+        /// Compressed byte offset where it failed.
         offset: u64,
     },
 
@@ -77,7 +106,13 @@ pub enum Error {
         "{path}: the input is {format}-compressed, which plumb does not read; decompress it, or \
          recompress it with zstd or gzip"
     )]
-    Unsupported { path: PathBuf, format: &'static str },
+    /// A compression plumb recognises but does not read.
+    Unsupported {
+        /// The input file.
+        path: PathBuf,
+        /// The compression, by name.
+        format: &'static str,
+    },
 
     /// The input is neither text nor a format plumb knows by its magic bytes.
     #[error(
@@ -85,22 +120,41 @@ pub enum Error {
          bytes: {first_bytes}); expected an edge list or Matrix Market text, plain, zstd or \
          gzip, or a plumb store file"
     )]
-    Binary { path: PathBuf, first_bytes: String },
+    Binary {
+        /// The input file.
+        path: PathBuf,
+        /// Its first bytes in hex.
+        first_bytes: String,
+    },
 
+    /// A Matrix Market header or entry is wrong.
     #[error("{path}: {pos}: Matrix Market: {problem}")]
     MatrixMarket {
+        /// The input file.
         path: PathBuf,
+        /// Where.
         pos: Position,
+        /// What is wrong.
         problem: String,
     },
 
+    /// More distinct nodes than 32-bit indices hold (or `--max-nodes`).
     #[error("{path}: more than {limit} distinct nodes (plumb indexes nodes with 32-bit integers)")]
-    TooManyNodes { path: PathBuf, limit: u64 },
+    TooManyNodes {
+        /// The input file.
+        path: PathBuf,
+        /// The most nodes allowed.
+        limit: u64,
+    },
 
+    /// A node's degree does not fit 32 bits.
     #[error("{path}: node {node} has more than {limit} edge lines; per-node degrees are 32-bit")]
     DegreeTooLarge {
+        /// The input file.
         path: PathBuf,
+        /// The node, as written.
         node: String,
+        /// The limit.
         limit: u64,
     },
 
@@ -108,28 +162,55 @@ pub enum Error {
         "{path}: {what} needs about {needed_mib} MiB, over the memory budget of {budget_mib} MiB \
          (raise it with --memory-budget if the machine has the memory)"
     )]
+    /// The build would exceed the memory budget.
     OverBudget {
+        /// The input file.
         path: PathBuf,
+        /// What would need the memory.
         what: String,
+        /// Memory needed, in MiB.
         needed_mib: u64,
+        /// The budget, in MiB.
         budget_mib: u64,
     },
 
+    /// A store file that fails its checks.
     #[error("{path}: not a usable store file: {problem}")]
-    Store { path: PathBuf, problem: String },
+    Store {
+        /// The store file.
+        path: PathBuf,
+        /// What is wrong, in words.
+        problem: String,
+    },
 
+    /// An output (or history) file that cannot be used.
     #[error("{path}: {problem}")]
-    Output { path: PathBuf, problem: String },
+    Output {
+        /// The file concerned.
+        path: PathBuf,
+        /// What is wrong, in words.
+        problem: String,
+    },
 
     /// A file that should hold a profile report does not.
     #[error("{path}: not a plumb profile report: {problem}")]
-    Report { path: PathBuf, problem: String },
+    Report {
+        /// The file that should hold a report.
+        path: PathBuf,
+        /// What is wrong, in words.
+        problem: String,
+    },
 
+    /// An option or parameter outside what it allows (usage error).
     #[error("{problem}")]
-    Parameters { problem: String },
+    Parameters {
+        /// What is wrong, naming the option or parameter.
+        problem: String,
+    },
 }
 
 impl Error {
+    /// The error's class, which the command line maps to an exit code.
     pub fn class(&self) -> ErrorClass {
         match self {
             Error::Io { .. } => ErrorClass::Io,
@@ -152,6 +233,7 @@ impl Error {
     }
 }
 
+/// Results of plumb's fallible operations.
 pub type Result<T, E = Error> = std::result::Result<T, E>;
 
 /// A parameter outside what its model or option allows: the problem in words, naming the

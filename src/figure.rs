@@ -35,18 +35,29 @@ use serde::{Deserialize, Serialize};
 #[serde(tag = "kind", rename_all = "lowercase")]
 pub enum Method {
     /// Computed exactly by the named algorithm.
-    Exact { algorithm: String },
+    Exact {
+        /// The algorithm, with its source.
+        algorithm: String,
+    },
     /// Estimated by the named estimator.
-    Estimate { estimator: String },
+    Estimate {
+        /// The estimator, with its source.
+        estimator: String,
+    },
     /// Not computed exactly, but certainly within the interval (level 1): the value is the
     /// lower bound.
-    Bounds { algorithm: String },
+    Bounds {
+        /// The algorithms behind the bounds.
+        algorithm: String,
+    },
 }
 
 /// A two-sided confidence interval.
 #[derive(Debug, Clone, Copy, PartialEq, Serialize, Deserialize, schemars::JsonSchema)]
 pub struct Interval {
+    /// Lower end.
     pub low: f64,
+    /// Upper end.
     pub high: f64,
     /// Nominal coverage, e.g. 0.95.
     pub level: f64,

@@ -18,6 +18,7 @@
 //! Start with [`store::load::load`], which reads an edge file (plain, zstd or gzip; edge list or
 //! Matrix Market) or a store file into a [`Graph`], then [`profile::profile`].
 
+#![warn(missing_docs)]
 
 pub mod error;
 pub mod estimate;

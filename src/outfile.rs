@@ -7,6 +7,8 @@ use std::path::{Path, PathBuf};
 
 use crate::error::{Error, Result};
 
+/// A file written beside its destination and renamed over it on commit; dropped uncommitted, it
+/// is removed.
 pub struct AtomicFile {
     dest: PathBuf,
     tmp: PathBuf,
@@ -14,6 +16,7 @@ pub struct AtomicFile {
 }
 
 impl AtomicFile {
+    /// Start writing `dest` (the temporary file is created beside it).
     pub fn create(dest: &Path) -> Result<Self> {
         let dir = match dest.parent() {
             Some(d) if !d.as_os_str().is_empty() => d.to_path_buf(),
@@ -36,6 +39,7 @@ impl AtomicFile {
         })
     }
 
+    /// The buffered writer.
     pub fn writer(&mut self) -> &mut BufWriter<File> {
         self.out.as_mut().expect("writer used after commit")
     }
@@ -120,7 +124,9 @@ pub struct EdgeWriter {
     frame_bytes: usize,
     pending: Vec<Vec<u8>>,
     current: Vec<u8>,
+    /// Edge lines written.
     pub edges: u64,
+    /// Bytes written (compressed, when compressing).
     pub bytes_out: u64,
     error: Option<std::io::Error>,
 }
@@ -150,6 +156,7 @@ impl EdgeWriter {
         }
     }
 
+    /// Write the edge `a b` with integer ids.
     pub fn edge(&mut self, a: u32, b: u32) {
         self.labelled(itoa_u32(a).as_bytes(), itoa_u32(b).as_bytes());
     }

@@ -10,9 +10,12 @@ pub trait Progress: Sync {
     fn finish(&self) {}
 }
 
+/// What a stage's total counts.
 #[derive(Debug, Clone, Copy, PartialEq, Eq)]
 pub enum Unit {
+    /// Bytes of input.
     Bytes,
+    /// Items of work.
     Items,
 }
 

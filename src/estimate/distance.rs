@@ -23,10 +23,15 @@ const RESAMPLES: usize = 1000;
 /// Sources in the first stage of a precision-driven run (two bit-parallel batches).
 pub const PILOT: usize = 128;
 
+/// Distance figures estimated by BFS from sampled sources (Eppstein & Wang, J. Graph Algorithms
+/// Appl. 8(1) 2004).
 #[derive(Debug, Clone, PartialEq)]
 pub struct SampledDistances {
+    /// Nodes of the graph measured.
     pub nodes: u64,
+    /// BFS sources used.
     pub sources: u64,
+    /// Mean distance over reachable ordered pairs, with its interval.
     pub mean: Figure,
     /// 90th-percentile distance, interpolated, self pairs excluded.
     pub effective_diameter: Figure,
@@ -87,9 +92,12 @@ pub fn estimate(g: &Csr, sources: usize, level: f64, seed: u64) -> SampledDistan
 pub struct Pilot {
     order: Vec<u32>,
     per: PerSource,
+    /// The pilot's figures.
     pub summary: SampledDistances,
 }
 
+/// A pilot sample of sources (64, one bit-parallel batch) that sizes the full sample by Stein's
+/// two-stage rule (Stein, Ann. Math. Statist. 16, 1945).
 pub fn pilot(g: &Csr, level: f64, max_sources: usize, seed: u64) -> Pilot {
     let n = g.node_count();
     let order = prefix_sample(n as u32, max_sources.max(PILOT), seed);

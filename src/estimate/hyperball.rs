@@ -32,7 +32,9 @@ pub struct BallOptions {
     /// Independent repetitions (different hash seeds); at least 2, since the interval comes from
     /// their spread.
     pub repeats: u32,
+    /// Confidence level of the intervals.
     pub level: f64,
+    /// Seed of the first hash function; each repetition derives its own.
     pub seed: u64,
 }
 
@@ -71,6 +73,7 @@ pub struct BallEstimate {
     pub distribution: Vec<Figure>,
     /// N(t) of every repetition.
     pub runs: Vec<Vec<f64>>,
+    /// Registers per counter.
     pub registers: u32,
     /// Relative standard error of each node's counter.
     pub counter_rse: f64,
@@ -171,8 +174,11 @@ fn chunked_sum(x: &[f64]) -> f64 {
 /// Figures read off one neighbourhood function.
 #[derive(Debug, Clone, PartialEq)]
 pub struct Derived {
+    /// Mean distance over reachable pairs.
     pub mean: f64,
+    /// Effective diameter at 90%, interpolated.
     pub effective_diameter: f64,
+    /// Reachable ordered pairs of distinct nodes.
     pub reachable_pairs: f64,
     /// Share of reachable pairs at each distance >= 1.
     pub shares: Vec<f64>,

@@ -152,15 +152,20 @@ impl TryFrom<SketchBlock> for IdSketch {
 /// Why two sketches cannot be combined.
 #[derive(Debug, Clone, PartialEq, Eq)]
 pub struct Mismatch {
+    /// What differs between the two sketches.
     pub what: String,
 }
 
 /// Nodes and edges in `after` but not `before` (appeared) and the reverse (vanished).
 #[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
 pub struct Churn {
+    /// Nodes in the later graph only.
     pub appeared_nodes: Figure,
+    /// Nodes in the earlier graph only.
     pub vanished_nodes: Figure,
+    /// Edges in the later graph only.
     pub appeared_edges: Figure,
+    /// Edges in the earlier graph only.
     pub vanished_edges: Figure,
 }
 

@@ -17,11 +17,17 @@ use crate::store::csr::Csr;
 /// Samples per independently seeded block: blocks make the result the same on any thread count.
 const BLOCK: u64 = 4096;
 
+/// Transitivity and triangles estimated by uniform wedge sampling (Seshadhri, Pinar & Kolda,
+/// SDM 2013).
 #[derive(Debug, Clone, PartialEq)]
 pub struct WedgeEstimate {
+    /// Transitivity, the closed share of sampled wedges, with its Wilson interval.
     pub transitivity: Figure,
+    /// Triangles, transitivity times wedges over three.
     pub triangles: Figure,
+    /// Wedges sampled.
     pub samples: u64,
+    /// Of them, closed.
     pub closed: u64,
 }
 
@@ -109,10 +115,14 @@ pub fn estimate(g: &Csr, samples: u64, level: f64, seed: u64) -> WedgeEstimate {
 /// < 2 counted as 0) is the same figure times n₂/n, both counts exact.
 #[derive(Debug, Clone, PartialEq)]
 pub struct AverageClusteringEstimate {
+    /// Average local clustering with degree < 2 counted as 0.
     pub average_zeros: Figure,
+    /// Average local clustering over nodes of degree ≥ 2.
     pub average_deg2: Figure,
 }
 
+/// Average local clustering by uniform node sampling (then a wedge per node), with
+/// finite-population corrected intervals (Seshadhri, Pinar & Kolda, SDM 2013).
 pub fn average_clustering(
     g: &Csr,
     samples: u64,
@@ -144,7 +154,7 @@ pub fn average_clustering(
     }
 }
 
-/// C(k), the average local clustering of the nodes in each degree bin [2,3], [4,7], [8,15], …
+/// C(k), the average local clustering of the nodes in each degree bin `[2,3]`, `[4,7]`, `[8,15]`, …
 /// (the exact profile's bins), each estimated by uniform node then uniform wedge within the bin,
 /// with its own Wilson interval.
 pub fn clustering_by_degree(

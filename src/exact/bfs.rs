@@ -10,6 +10,7 @@ use rayon::prelude::*;
 
 use crate::store::csr::Csr;
 
+/// Distance of a node not reached.
 pub const UNREACHED: u32 = u32::MAX;
 
 /// Reusable buffers, so repeated searches allocate nothing.
@@ -29,6 +30,7 @@ const PARALLEL_FRONTIER: usize = 2048;
 const CHUNK: usize = 4096;
 
 impl Bfs {
+    /// A searcher for graphs of `n` nodes (its arrays are reused across searches).
     pub fn new(n: usize) -> Self {
         Bfs {
             dist: (0..n).map(|_| AtomicU32::new(UNREACHED)).collect(),

@@ -13,23 +13,31 @@ use crate::store::csr::Csr;
 /// Mean local clustering of the nodes whose degree falls in `[low, high]`.
 #[derive(Debug, Clone, PartialEq, Serialize, Deserialize, schemars::JsonSchema)]
 pub struct DegreeClustering {
+    /// Smallest degree in the bin.
     pub low: u32,
+    /// Largest degree in the bin.
     pub high: u32,
+    /// Nodes in the bin.
     pub nodes: u64,
+    /// Mean local clustering of the bin's nodes.
     pub mean: Figure,
 }
 
+/// Triangles, transitivity and local clustering of a graph (Watts & Strogatz, Nature 393, 1998;
+/// Newman, SIAM Review 45, 2003).
 #[derive(Debug, Clone, PartialEq, Serialize, Deserialize, schemars::JsonSchema)]
 pub struct ClusteringStats {
+    /// Triangles, 1/3 of the closed wedges.
     pub triangles: Figure,
     /// Sum over nodes of C(d, 2), the connected triples centred at each node.
     pub wedges: u128,
+    /// Transitivity, 3 triangles / wedges.
     pub transitivity: Figure,
     /// Average local clustering with nodes of degree < 2 counted as 0.
     pub average_zeros: Figure,
     /// Average local clustering over nodes of degree >= 2 only.
     pub average_deg2: Figure,
-    /// C(k) in bins [2,3], [4,7], [8,15], … (degree < 2 has no clustering).
+    /// C(k) in bins `[2,3]`, `[4,7]`, `[8,15]`, … (degree < 2 has no clustering).
     pub by_degree: Vec<DegreeClustering>,
 }
 

@@ -24,9 +24,13 @@ pub struct Components {
 /// The summary a profile reports.
 #[derive(Debug, Clone, PartialEq, Serialize, Deserialize, schemars::JsonSchema)]
 pub struct ComponentStats {
+    /// Number of connected components (isolated nodes count).
     pub count: u64,
+    /// Nodes in the largest component.
     pub giant_nodes: u64,
+    /// Edges in the largest component.
     pub giant_edges: u64,
+    /// Share of nodes in the largest component.
     pub giant_fraction: f64,
     /// Isolated nodes are components of size 1.
     pub singletons: u64,
@@ -65,6 +69,8 @@ fn union(p: &[AtomicU32], a: u32, b: u32) {
     }
 }
 
+/// Connected components by a concurrent union-find (labels are each component's smallest node,
+/// so they never depend on threads).
 pub fn components(g: &Csr) -> Components {
     let n = g.node_count();
     let parent: Vec<AtomicU32> = (0..n as u32).map(AtomicU32::new).collect();

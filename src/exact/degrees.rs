@@ -9,26 +9,36 @@ use crate::store::csr::Csr;
 /// A logarithmic bin of degrees `[low, high]` (both inclusive) and how many nodes fall in it.
 #[derive(Debug, Clone, PartialEq, Serialize, Deserialize, schemars::JsonSchema)]
 pub struct DegreeBin {
+    /// Smallest degree in the bin.
     pub low: u32,
+    /// Largest degree in the bin.
     pub high: u32,
+    /// Nodes in the bin.
     pub nodes: u64,
 }
 
+/// Degree statistics and degree assortativity (Newman, Phys. Rev. Lett. 89, 208701, 2002).
 #[derive(Debug, Clone, PartialEq, Serialize, Deserialize, schemars::JsonSchema)]
 pub struct DegreeStats {
+    /// Nodes.
     pub nodes: u64,
+    /// Undirected edges.
     pub edges: u64,
     /// 2m / (n (n - 1)).
     pub density: f64,
+    /// Nodes of degree 0.
     pub isolated: u64,
+    /// Smallest degree.
     pub min: u32,
+    /// Largest degree.
     pub max: u32,
+    /// Mean degree 2m/n.
     pub mean: f64,
     /// Mean of the squared degree, <k^2>.
     pub second_moment: f64,
     /// `histogram[k]` = nodes of degree k, for k up to the maximum degree.
     pub histogram: Vec<u64>,
-    /// Degree 0 alone, then bins [1,1], [2,3], [4,7], … (powers of two).
+    /// Degree 0 alone, then bins `[1,1]`, `[2,3]`, `[4,7]`, … (powers of two).
     pub log_bins: Vec<DegreeBin>,
     /// Pearson correlation of the degrees at either end of an edge (Newman, "Assortative mixing
     /// in networks", Phys. Rev. Lett. 89, 208701, 2002). `None` when undefined (no edges, or all

@@ -21,19 +21,27 @@ use crate::store::csr::Csr;
 
 /// The double sweep and the BFS levels of the central node.
 pub struct Sweep {
+    /// Lower bound on the diameter.
     pub lower: u32,
+    /// A node near the centre (the midpoint of the longest path found).
     pub center: u32,
+    /// Its eccentricity.
     pub center_ecc: u32,
     /// `levels[i]` = nodes at distance i from the center.
     pub levels: Vec<Vec<u32>>,
+    /// Eccentricities computed on the way: (node, eccentricity).
     pub known: Vec<(u32, u32)>,
+    /// Breadth-first searches run.
     pub bfs_runs: u64,
 }
 
+/// The diameter, exact or between certain bounds (iFUB: Crescenzi, Grossi, Habib, Lanzi &
+/// Marino, Theor. Comput. Sci. 514, 2013).
 #[derive(Debug, Clone, PartialEq, Serialize, Deserialize, schemars::JsonSchema)]
 pub struct Diameter {
     /// Exact when `lower == upper`.
     pub lower: u32,
+    /// Upper bound.
     pub upper: u32,
     /// The double-sweep lower bound iFUB started from.
     pub double_sweep_bound: u32,
@@ -45,6 +53,7 @@ pub struct Diameter {
 }
 
 impl Diameter {
+    /// Whether the bounds met.
     pub fn is_exact(&self) -> bool {
         self.lower == self.upper
     }

@@ -15,6 +15,7 @@ use crate::store::csr::Csr;
 pub struct AllPairs {
     /// `pairs[d]` = ordered pairs (u, v), u != v, at distance d (`pairs[0]` = 0).
     pub pairs: Vec<u64>,
+    /// Eccentricity of every node.
     pub eccentricity: Vec<u32>,
 }
 
@@ -156,15 +157,19 @@ fn batch<const EACH: bool>(
 pub struct DistanceStats {
     /// Which nodes the figures cover, e.g. "giant component".
     pub node_set: String,
+    /// Nodes of the set measured.
     pub nodes: u64,
     /// Ordered pairs of distinct nodes within the set (all reachable).
     pub pairs: u64,
     /// Ordered pairs of distinct nodes of the whole graph that cannot reach each other.
     pub unreachable_pairs_in_graph: u64,
+    /// Mean distance over reachable ordered pairs.
     pub mean: Figure,
     /// `distribution[d]` = ordered pairs at distance d (index 0 unused, 0).
     pub distribution: Vec<u64>,
+    /// Diameter, the largest eccentricity.
     pub diameter: Figure,
+    /// Radius, the smallest eccentricity (absent when not computed).
     pub radius: Option<Figure>,
     /// 90th-percentile distance, linearly interpolated, self pairs excluded.
     pub effective_diameter: Figure,

@@ -15,6 +15,7 @@ use crate::store::csr::Csr;
 /// Triangles in total and through each node.
 #[derive(Debug, Clone, PartialEq)]
 pub struct Triangles {
+    /// Triangles in the graph.
     pub total: u64,
     /// `per_node[v]` = triangles containing v.
     pub per_node: Vec<u64>,

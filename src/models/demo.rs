@@ -14,7 +14,9 @@ use rand_chacha::ChaCha8Rng;
 /// Knobs of the generator.
 #[derive(Debug, Clone)]
 pub struct Platform {
+    /// Members of the invented platform.
     pub members: usize,
+    /// Reply circles members belong to.
     pub circles: usize,
     /// Replies in one weekly export.
     pub replies_per_week: usize,

@@ -19,15 +19,42 @@ use crate::store::fill::csr_from_pairs;
 #[serde(tag = "model", rename_all = "kebab-case")]
 pub enum Model {
     /// Ring lattice: node i joined to its k/2 nearest neighbours on each side.
-    Lattice { n: u32, k: u32 },
+    Lattice {
+        /// Nodes on the ring.
+        n: u32,
+        /// Degree (even).
+        k: u32,
+    },
     /// Watts–Strogatz rewiring of the ring lattice with probability p.
-    WattsStrogatz { n: u32, k: u32, p: f64 },
+    WattsStrogatz {
+        /// Nodes on the ring.
+        n: u32,
+        /// Lattice degree before rewiring (even).
+        k: u32,
+        /// Probability that an edge's far end is rewired.
+        p: f64,
+    },
     /// Erdős–Rényi with exactly m edges.
-    Gnm { n: u32, m: u64 },
+    Gnm {
+        /// Nodes.
+        n: u32,
+        /// Edges, uniform among all pairs.
+        m: u64,
+    },
     /// Erdős–Rényi with each pair joined independently with probability p.
-    Gnp { n: u32, p: f64 },
+    Gnp {
+        /// Nodes.
+        n: u32,
+        /// Probability that a pair is joined.
+        p: f64,
+    },
     /// Preferential attachment, d edges per new node.
-    Preferential { n: u32, d: u32 },
+    Preferential {
+        /// Nodes, added one at a time.
+        n: u32,
+        /// Edges each new node attaches.
+        d: u32,
+    },
 }
 
 impl Model {
@@ -60,6 +87,7 @@ impl Model {
         }
     }
 
+    /// Nodes of the model graph.
     pub fn nodes(&self) -> u32 {
         match *self {
             Model::Lattice { n, .. }

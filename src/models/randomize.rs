@@ -13,8 +13,10 @@ use serde::{Deserialize, Serialize};
 use crate::store::csr::Csr;
 use crate::store::fill::csr_from_pairs;
 
+/// What the double-edge swaps did (Maslov & Sneppen, Science 296, 2002).
 #[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize, Deserialize, schemars::JsonSchema)]
 pub struct SwapReport {
+    /// Swaps attempted.
     pub attempted: u64,
     /// Swaps made; the rest would have made a self-loop or a repeated edge.
     pub accepted: u64,
@@ -89,6 +91,7 @@ pub fn degree_preserving(g: &Csr, swaps_per_edge: f64, seed: u64) -> (Csr, SwapR
     (csr_from_pairs(g.node_count(), &e), report)
 }
 
+/// What the configuration model erased (Newman, SIAM Review 45, 2003).
 #[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize, Deserialize, schemars::JsonSchema)]
 pub struct ConfigurationReport {
     /// Stub pairs that joined a node to itself (erased).

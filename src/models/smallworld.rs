@@ -81,8 +81,11 @@ pub struct Reference {
     pub name: String,
     /// The formula or procedure and its source.
     pub source: String,
+    /// C_r (or C_l) by transitivity.
     pub transitivity: Option<Figure>,
+    /// C_r (or C_l) by average local clustering.
     pub average_clustering: Option<Figure>,
+    /// L_r (or L_l).
     pub mean_distance: Option<Figure>,
     /// Sampled graphs behind the figures (none for analytic references): their spread is
     /// propagated with a Student t of `graphs − 1` degrees of freedom.
@@ -92,13 +95,19 @@ pub struct Reference {
 /// The observed graph's figures the coefficients use (on its giant component).
 #[derive(Debug, Clone, PartialEq)]
 pub struct Observed {
+    /// Nodes of the giant component.
     pub nodes: u64,
+    /// Its edges.
     pub edges: u64,
+    /// Its mean degree.
     pub mean_degree: f64,
+    /// Its second degree moment ⟨k²⟩.
     pub second_moment: f64,
+    /// Its transitivity.
     pub transitivity: Figure,
     /// Average local clustering, degree < 2 counted as 0.
     pub average_clustering: Figure,
+    /// Its mean distance.
     pub mean_distance: Figure,
 }
 
@@ -109,20 +118,26 @@ pub struct Coefficients {
     pub clustering: String,
     /// Which reference gave C_r and L_r.
     pub compared_with: String,
+    /// sigma = (C/C_r)/(L/L_r) (Humphries & Gurney, PLoS ONE 3, 2008).
     pub sigma: Figure,
+    /// omega = L_r/L − C/C_l (Telesford et al., Brain Connectivity 1, 2011).
     pub omega: Figure,
+    /// Small-world propensity phi (Muldoon, Bridgeford & Bassett, Sci. Rep. 6, 2016).
     pub propensity: Figure,
     /// Plain-words readings that respect the intervals.
     pub verdicts: Vec<String>,
 }
 
+/// The small-world comparison of the giant component with its references.
 #[derive(Debug, Clone, PartialEq, Serialize, Deserialize, schemars::JsonSchema)]
 pub struct SmallWorld {
     /// Node set the comparison is made on.
     pub node_set: String,
+    /// The references, sampled first, then analytic.
     pub references: Vec<Reference>,
     /// One entry per clustering kind.
     pub coefficients: Vec<Coefficients>,
+    /// What a reader should keep in mind, in words.
     pub caveats: Vec<String>,
 }
 

@@ -12,25 +12,35 @@ use crate::models::measure::{Measure, measure_reference};
 use crate::models::smallworld::{lattice_clustering, lattice_mean_distance};
 use crate::numeric::mean_variance;
 
+/// One rewiring probability of the sweep.
 #[derive(Debug, Clone, PartialEq, Serialize, Deserialize, schemars::JsonSchema)]
 pub struct SweepRow {
+    /// The rewiring probability.
     pub p: f64,
+    /// Seeded graphs measured.
     pub graphs: u64,
     /// Transitivity C(p), mean over the graphs.
     pub clustering: Figure,
     /// Mean distance L(p) (on each graph's giant component), mean over the graphs.
     pub mean_distance: Figure,
+    /// C(p)/C(0), with its interval.
     pub clustering_ratio: Figure,
+    /// L(p)/L(0), with its interval.
     pub distance_ratio: Figure,
 }
 
+/// The Watts–Strogatz sweep (Watts & Strogatz, Nature 393, 1998, Fig. 2).
 #[derive(Debug, Clone, PartialEq, Serialize, Deserialize, schemars::JsonSchema)]
 pub struct Sweep {
+    /// Nodes of each graph.
     pub nodes: u32,
+    /// Lattice degree K.
     pub degree: u32,
     /// C(0) and L(0), exact for the ring lattice.
     pub lattice_clustering: f64,
+    /// L(0), exact for the ring lattice.
     pub lattice_mean_distance: f64,
+    /// One row per probability.
     pub rows: Vec<SweepRow>,
 }
 

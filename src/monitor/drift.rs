@@ -18,7 +18,9 @@ use crate::profile::report::Report;
 #[derive(Debug, Clone, Copy, PartialEq, Serialize, Deserialize, schemars::JsonSchema)]
 #[serde(tag = "kind", content = "value", rename_all = "lowercase")]
 pub enum Threshold {
+    /// At least this much, in the figure's units.
     Absolute(f64),
+    /// At least this share of the earlier value.
     Relative(f64),
 }
 
@@ -192,12 +194,16 @@ pub struct Change {
     pub key: FigureKey,
     /// The figure's name in reports.
     pub label: String,
+    /// The earlier value.
     pub before: f64,
+    /// The later value.
     pub after: f64,
     /// after − before, with its standard error and interval (at the comparison's level,
     /// Bonferroni-adjusted for estimated figures).
     pub difference: Figure,
+    /// Beyond the sampling error (any difference, for exact figures).
     pub significant: bool,
+    /// The minimum effect that applied.
     pub threshold: Threshold,
     /// Significant and at least the threshold.
     pub alert: bool,
@@ -205,16 +211,20 @@ pub struct Change {
     pub verdict: Verdict,
 }
 
+/// One comparison of two reports, figure by figure.
 #[derive(Debug, Clone, PartialEq, Serialize, Deserialize, schemars::JsonSchema)]
 pub struct Drift {
     /// Labels of the two sides, e.g. snapshot labels or file names.
     pub before: String,
+    /// Label of the later side.
     pub after: String,
     /// Family-wise level of the significance tests.
     pub level: f64,
     /// Estimated figures among those compared (the Bonferroni family size).
     pub tested: usize,
+    /// Every figure both reports carry.
     pub changes: Vec<Change>,
+    /// Changes that alert.
     pub alerts: usize,
 }
 
@@ -324,11 +334,17 @@ pub fn parse_threshold(s: &str) -> Result<(FigureKey, Threshold), ParamError> {
 /// up to 128-bit hash collisions of the ids, about 10⁻²⁰ for a billion edges).
 #[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize, Deserialize, schemars::JsonSchema)]
 pub struct ExactChurn {
+    /// Nodes in the later graph only.
     pub nodes_appeared: u64,
+    /// Nodes in the earlier graph only.
     pub nodes_vanished: u64,
+    /// Nodes in both.
     pub nodes_kept: u64,
+    /// Edges in the later graph only.
     pub edges_appeared: u64,
+    /// Edges in the earlier graph only.
     pub edges_vanished: u64,
+    /// Edges in both.
     pub edges_kept: u64,
 }
 

@@ -15,10 +15,12 @@ use crate::error::{Error, Result};
 use crate::outfile::write_atomic;
 use crate::profile::report::Report;
 
+/// Format name written in every history index.
 pub const INDEX_FORMAT: &str = "plumb-history";
 /// Layout version of `index.json`; readers accept this and every earlier version.
 pub const INDEX_VERSION: u32 = 1;
 
+/// One snapshot of a history.
 #[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
 pub struct Entry {
     /// Position in the history, from 1.
@@ -30,6 +32,7 @@ pub struct Entry {
     /// XXH3-64 of the input as stored (`null` for standard input).
     #[serde(default)]
     pub input_xxh3: Option<String>,
+    /// Size of the input as stored (`null` for standard input).
     #[serde(default)]
     pub input_bytes: Option<u64>,
     /// The pinned baseline that later snapshots are also compared with.
@@ -37,22 +40,31 @@ pub struct Entry {
     pub baseline: bool,
 }
 
+/// A history's index: its format, version and snapshots in order.
 #[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
 pub struct Index {
+    /// Always "plumb-history".
     pub format: String,
+    /// Version of the index layout.
     pub version: u32,
+    /// Snapshots in order.
     pub entries: Vec<Entry>,
 }
 
 /// A snapshot that could not be read, and why.
 #[derive(Debug, Clone, PartialEq)]
 pub struct Problem {
+    /// The snapshot file, relative to the history.
     pub file: String,
+    /// What is wrong with it.
     pub what: String,
 }
 
+/// A history directory, opened: its index and every readable snapshot.
 pub struct History {
+    /// The directory.
     pub dir: PathBuf,
+    /// Its index.
     pub index: Index,
     /// Things found wrong on opening (unreadable snapshots, a rebuilt index).
     pub problems: Vec<Problem>,
@@ -279,6 +291,7 @@ impl History {
             .find_map(|(e, r)| r.as_ref().map(|r| (e, r)))
     }
 
+    /// The pinned baseline (the first snapshot unless another was pinned), when readable.
     pub fn baseline(&self) -> Option<(&Entry, &Report)> {
         let i = self
             .index

@@ -9,6 +9,8 @@ use crate::monitor::history::{Entry, History};
 use crate::output::svg::{Axis, Mark, Point, Series, chart, esc};
 use crate::profile::report::Report;
 
+/// The trend page of a history: each figure over the snapshots with interval bars where
+/// estimated, alerts against the previous snapshot marked, at `level` with `thresholds`.
 pub fn page(h: &History, level: f64, thresholds: &[(FigureKey, Threshold)]) -> String {
     let snaps = h.reports();
     let labels: Vec<String> = snaps

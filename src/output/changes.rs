@@ -9,6 +9,8 @@ use crate::monitor::drift::{Change, Drift, ExactChurn};
 use crate::output::number::count;
 use crate::output::text::row;
 
+/// One comparison as text: a verdict row, then a row per figure, then the exact churn when
+/// known.
 pub fn drift_text(d: &Drift, churn: Option<&ExactChurn>) -> String {
     let mut out = String::new();
     let _ = writeln!(out, "  ── {} → {}", d.before, d.after);
@@ -51,6 +53,7 @@ pub fn drift_text(d: &Drift, churn: Option<&ExactChurn>) -> String {
     out
 }
 
+/// Churn estimated from two reports' id sketches, as one row.
 pub fn sketch_churn_text(c: &Churn) -> String {
     let mut out = String::new();
     let f = |x: &Figure| match x.interval() {

@@ -1,5 +1,5 @@
 //! The profile as one self-contained HTML page: inline CSS and inline SVG charts drawn by
-//! [`crate::output::svg`], no scripts, no fonts or images fetched from anywhere. Real text throughout;
+//! the crate's own SVG code, no scripts, no fonts or images fetched from anywhere. Real text throughout;
 //! every chart has a title, axis labels with units and a text description; series differ by
 //! marker shape as well as shade, so the page reads printed in grey scale.
 
@@ -11,6 +11,7 @@ use crate::output::svg::{Axis, Guide, Mark, Point, Series, chart, esc};
 use crate::profile::report::Report;
 use crate::profile::{Distances, Profile};
 
+/// The pages' shared style sheet (inlined; no fonts or images fetched).
 pub const STYLE: &str = r#"
 :root { --ink: #1c2630; --soft: #5b6770; --rule: #d5d9dc; --paper: #fbfaf7; --a: #7a3b1d; --b: #2f5d62; --c: #6b6b6b; }
 * { box-sizing: border-box; }

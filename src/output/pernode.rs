@@ -9,6 +9,7 @@ use crate::outfile::{AtomicFile, write_zstd_frames};
 use crate::profile::NodeTable;
 use crate::store::graph::Graph;
 
+/// The per-node table's header line.
 pub const HEADER: &str = "id\tdegree\ttriangles\tclustering\tcomponent\teccentricity\n";
 
 /// Render the table as TSV text. Clustering has 6 decimals; a figure that was not computed

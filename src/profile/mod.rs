@@ -26,6 +26,7 @@ use crate::progress::Progress;
 use crate::store::graph::Graph;
 use crate::store::intake::{Intake, Stage, StageName};
 
+/// What the profile computes and how: time budgets, methods, margins, level and seed.
 #[derive(Debug, Clone)]
 pub struct ProfileOptions {
     /// Seconds an exact method may be predicted to take before the planner estimates instead.
@@ -62,6 +63,7 @@ pub struct ProfileOptions {
     pub groups: Groups,
     /// Threads the cost predictions assume (default: the pool's).
     pub threads: usize,
+    /// Per-thread rates of the cost model.
     pub rates: Rates,
 }
 
@@ -109,8 +111,11 @@ impl Default for ProfileOptions {
 /// for it computes them too.
 #[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize, Deserialize, schemars::JsonSchema)]
 pub struct Groups {
+    /// Triangles, transitivity and local clustering.
     pub clustering: bool,
+    /// Mean distance, distribution, diameter.
     pub distances: bool,
+    /// sigma, omega and propensity against references.
     pub small_world: bool,
 }
 
@@ -144,6 +149,7 @@ pub const DEFAULT_EXACT_SECONDS: f64 = 20.0;
 /// The diameter of the node set distances are reported on.
 #[derive(Debug, Clone, PartialEq, Serialize, Deserialize, schemars::JsonSchema)]
 pub struct DiameterFigures {
+    /// The diameter, exact or as certain bounds.
     pub diameter: Figure,
     /// The double-sweep lower bound.
     pub double_sweep_bound: u32,
@@ -154,8 +160,11 @@ pub struct DiameterFigures {
 /// Distance figures estimated on a connected node set.
 #[derive(Debug, Clone, PartialEq, Serialize, Deserialize, schemars::JsonSchema)]
 pub struct EstimatedDistances {
+    /// Which nodes, in words.
     pub node_set: String,
+    /// How many.
     pub nodes: u64,
+    /// Mean distance over reachable ordered pairs, with its interval.
     pub mean: Figure,
     /// 90th-percentile distance, interpolated, self pairs excluded.
     pub effective_diameter: Figure,
@@ -168,6 +177,7 @@ pub struct EstimatedDistances {
     pub sources: Option<u64>,
     /// Registers per counter and each counter's relative standard error, if HyperBall ran.
     pub registers: Option<u32>,
+    /// Relative standard error of each HyperBall counter, if HyperBall ran.
     pub counter_rse: Option<f64>,
 }
 
@@ -175,7 +185,9 @@ pub struct EstimatedDistances {
 #[derive(Debug, Clone, PartialEq, Serialize, Deserialize, schemars::JsonSchema)]
 #[serde(tag = "status", rename_all = "kebab-case")]
 pub enum Distances {
+    /// Computed exactly by all-pairs BFS.
     Exact(Box<DistanceStats>),
+    /// Estimated with intervals.
     Estimated(Box<EstimatedDistances>),
     /// No pairs to measure (no edges).
     Empty,
@@ -183,21 +195,28 @@ pub enum Distances {
     NotRequested,
 }
 
+/// A graph's structure profile: every figure with its method and, for estimates, its interval.
 #[derive(Debug, Clone, PartialEq, Serialize, Deserialize, schemars::JsonSchema)]
 pub struct Profile {
+    /// What was read.
     pub intake: Intake,
+    /// Degree statistics (exact).
     pub degrees: DegreeStats,
+    /// Components (exact).
     pub components: ComponentStats,
     /// `None` when clustering was not asked for.
     pub clustering: Option<ClusteringStats>,
     /// Node set for the distance figures.
     pub distance_node_set: String,
+    /// The diameter of the distance node set, when distances were asked for.
     pub diameter: Option<DiameterFigures>,
+    /// Distance figures.
     pub distances: Distances,
     /// sigma, omega and small-world propensity against random and lattice references.
     pub small_world: Option<SmallWorld>,
     /// Which method ran for each figure group, and why.
     pub plan: Vec<Decision>,
+    /// Wall time of each stage.
     pub stages: Vec<Stage>,
 }
 
@@ -206,6 +225,7 @@ pub struct Profile {
 pub struct NodeTable {
     /// Per-node triangles and local clustering, when clustering was exact.
     pub triangles: Option<Vec<u64>>,
+    /// Per-node local clustering, when clustering was exact.
     pub clustering: Option<Vec<f64>>,
     /// Component rank: 1 = the giant component, then by size.
     pub component: Vec<u32>,

@@ -55,7 +55,9 @@ pub enum Choice {
     /// Exact when it fits the time budget, else the estimator.
     #[default]
     Auto,
+    /// Always the exact method.
     Exact,
+    /// Always the estimator.
     Estimate,
 }
 

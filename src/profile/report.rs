@@ -60,8 +60,11 @@ pub struct Report {
     pub schema_version: u32,
     /// Version of the plumb that wrote it.
     pub plumb_version: String,
+    /// The input file.
     pub input: InputFile,
+    /// The settings.
     pub settings: Settings,
+    /// The profile.
     pub profile: Profile,
     /// HyperLogLog sketches of the node ids and edges by original id (precision 14, hash seed
     /// 0), so that two reports can be compared for churn without their input files. Absent when

@@ -9,19 +9,24 @@ use crate::read::mtx::Field;
 /// Matrix Market rules for entry lines.
 #[derive(Debug, Clone, Copy)]
 pub struct MtxRules {
+    /// Nodes the size line declares.
     pub n: u64,
+    /// The entries' field kind.
     pub field: Field,
 }
 
 /// How lines are judged.
 #[derive(Debug, Clone)]
 pub struct ScanRules {
+    /// Longest line accepted, in bytes.
     pub max_line: usize,
+    /// Count malformed lines instead of stopping at the first.
     pub skip_malformed: bool,
     /// Text offset where data starts (after a Matrix Market header); earlier lines are skipped.
     pub body_start: u64,
     /// Text offset of a header line to skip.
     pub header_at: Option<u64>,
+    /// Matrix Market entry rules, for Matrix Market input.
     pub mtx: Option<MtxRules>,
     /// Ids are compared as text (else by integer value) when deciding self-loops.
     pub text_ids: bool,
@@ -30,16 +35,24 @@ pub struct ScanRules {
 /// Line counts of one chunk.
 #[derive(Debug, Default, Clone, Copy)]
 pub struct Counts {
+    /// Lines scanned.
     pub lines: u64,
+    /// Blank lines.
     pub blank: u64,
+    /// Comment lines.
     pub comments: u64,
+    /// Edge lines (self-loops included).
     pub edge_lines: u64,
+    /// Edge lines with extra columns.
     pub extra: u64,
+    /// Self-loops.
     pub loops: u64,
+    /// Malformed lines skipped.
     pub malformed: u64,
 }
 
 impl Counts {
+    /// Add another chunk's counts.
     pub fn add(&mut self, o: &Counts) {
         self.lines += o.lines;
         self.blank += o.blank;
@@ -54,11 +67,16 @@ impl Counts {
 /// What is wrong with a line, before it is placed in the file.
 #[derive(Debug, Clone)]
 pub enum LineError {
+    /// The line breaks the edge-list grammar.
     Malformed {
+        /// What is wrong.
         problem: String,
+        /// What the grammar expects.
         expected: &'static str,
     },
+    /// Longer than the limit.
     TooLong,
+    /// A Matrix Market entry that breaks its header's promise.
     Mtx(String),
 }
 
@@ -69,15 +87,20 @@ pub struct LocalFault {
     pub line: u64,
     /// Byte offset of the line's start within the chunk.
     pub offset: usize,
+    /// What is wrong.
     pub error: LineError,
+    /// The line's start, as written.
     pub excerpt: String,
 }
 
 /// The result of scanning one chunk.
 #[derive(Debug, Clone)]
 pub struct ChunkOutcome {
+    /// The chunk's position among the chunks.
     pub index: usize,
+    /// Text offset where the chunk starts.
     pub byte_base: u64,
+    /// What the chunk held.
     pub counts: Counts,
     /// Skipped malformed lines (the first few).
     pub skipped: Vec<LocalFault>,
@@ -85,6 +108,7 @@ pub struct ChunkOutcome {
     pub error: Option<LocalFault>,
     /// The callback stopped the scan (a text id turned up in an integer pass).
     pub stopped: bool,
+    /// Whether the chunk held the header line, skipped.
     pub header_skipped: bool,
 }
 

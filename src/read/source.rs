@@ -15,16 +15,22 @@ use crate::read::magic;
 )]
 #[serde(rename_all = "lowercase")]
 pub enum Compression {
+    /// Not compressed.
     None,
+    /// zstd (RFC 8878), one frame or several.
     Zstd,
+    /// gzip (RFC 1952), one member or several.
     Gzip,
 }
 
 /// What the first bytes of an input say it is.
 #[derive(Debug, Clone, Copy, PartialEq, Eq)]
 pub enum Sniffed {
+    /// Text (possibly malformed).
     Text,
+    /// A compression plumb decodes.
     Compressed(Compression),
+    /// A plumb store file.
     Store,
     /// A compression plumb does not read, by name.
     Unsupported(&'static str),
@@ -102,6 +108,7 @@ pub fn hex_head(data: &[u8]) -> String {
 
 /// The bytes of one input, mapped or read, never modified.
 pub struct InputBytes {
+    /// The path as given (`-` for standard input).
     pub path: PathBuf,
     bytes: Backing,
 }
@@ -163,6 +170,7 @@ impl InputBytes {
         }
     }
 
+    /// The bytes, as stored.
     pub fn bytes(&self) -> &[u8] {
         match &self.bytes {
             Backing::Mapped(m) => m,
@@ -191,6 +199,7 @@ pub struct TextChunk {
     pub index: usize,
     /// Offset of the chunk's first byte in the decompressed text.
     pub byte_base: u64,
+    /// Decoded text, ending at a line end (or the end of the input).
     pub bytes: Vec<u8>,
 }
 
@@ -198,9 +207,19 @@ pub struct TextChunk {
 #[derive(Debug)]
 pub enum StreamFault {
     /// The compressed data is corrupt or truncated.
-    Codec { problem: String, offset: u64 },
+    Codec {
+        /// What the decoder said.
+        problem: String,
+        /// Compressed byte offset where it failed.
+        offset: u64,
+    },
     /// No newline within the line-length limit; the overlong line starts the chunk `index`.
-    LongLine { index: usize, byte_base: u64 },
+    LongLine {
+        /// The chunk with the line.
+        index: usize,
+        /// Text offset where the chunk starts.
+        byte_base: u64,
+    },
 }
 
 /// Split decompressed data into newline-aligned chunks of about `target` bytes.
@@ -283,7 +302,9 @@ impl Stitcher {
 /// Summary of a decode run.
 #[derive(Debug, Default, Clone, Copy)]
 pub struct DecodeInfo {
+    /// zstd frames decoded.
     pub frames: u64,
+    /// Bytes of text after decoding.
     pub text_bytes: u64,
 }
 

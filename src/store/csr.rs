@@ -3,6 +3,8 @@
 
 use crate::store::slab::Slab;
 
+/// Compressed sparse rows of an undirected graph: sorted, deduplicated, symmetric neighbour
+/// lists (u32 targets, u64 offsets), owned or mapped from a store file.
 #[derive(Debug)]
 pub struct Csr {
     offsets: Slab<u64>,
@@ -38,6 +40,7 @@ impl Csr {
         Csr::from_parts(offsets.into(), targets.into())
     }
 
+    /// Nodes.
     #[inline]
     pub fn node_count(&self) -> usize {
         self.offsets.len() - 1
@@ -49,22 +52,26 @@ impl Csr {
         self.targets.len() as u64 / 2
     }
 
+    /// Where each node's list starts (n + 1 offsets).
     #[inline]
     pub fn offsets(&self) -> &[u64] {
         &self.offsets
     }
 
+    /// Every list, concatenated.
     #[inline]
     pub fn targets(&self) -> &[u32] {
         &self.targets
     }
 
+    /// The neighbours of `u`, ascending.
     #[inline]
     pub fn neighbors(&self, u: u32) -> &[u32] {
         let o = self.offsets();
         &self.targets()[o[u as usize] as usize..o[u as usize + 1] as usize]
     }
 
+    /// The degree of `u`.
     #[inline]
     pub fn degree(&self, u: u32) -> u32 {
         let o = self.offsets();
@@ -107,6 +114,7 @@ impl Csr {
         }
     }
 
+    /// Whether the lists are mapped from a store file.
     pub fn is_mapped(&self) -> bool {
         self.targets.is_mapped()
     }

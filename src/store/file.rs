@@ -43,6 +43,7 @@ compile_error!(
 );
 
 pub(crate) const MAGIC: &[u8; 8] = crate::read::magic::STORE;
+/// Version of the store layout this build writes and the newest it reads.
 pub const VERSION: u32 = 1;
 const HEADER: usize = 128;
 const ALIGN: u64 = 64;

@@ -10,11 +10,21 @@ use crate::store::slab::Slab;
 #[derive(Debug)]
 pub enum NodeIds {
     /// Ids `first, first + 1, …` (contiguous numbering needs no table).
-    Range { first: u64, len: usize },
+    Range {
+        /// The first id.
+        first: u64,
+        /// How many ids.
+        len: usize,
+    },
     /// Integer ids, ascending.
     Ints(Slab<u64>),
     /// Text ids, bytewise ascending: id `i` is `bytes[offsets[i]..offsets[i + 1]]`.
-    Text { offsets: Slab<u64>, bytes: Slab<u8> },
+    Text {
+        /// Where each id starts in `bytes` (n + 1 offsets).
+        offsets: Slab<u64>,
+        /// The ids' bytes, concatenated in rank order.
+        bytes: Slab<u8>,
+    },
 }
 
 impl NodeIds {
@@ -36,6 +46,7 @@ impl NodeIds {
         }
     }
 
+    /// Number of ids (= nodes).
     pub fn len(&self) -> usize {
         match self {
             NodeIds::Range { len, .. } => *len,
@@ -44,10 +55,12 @@ impl NodeIds {
         }
     }
 
+    /// Whether there are no ids.
     pub fn is_empty(&self) -> bool {
         self.len() == 0
     }
 
+    /// Integer or text ids.
     pub fn kind(&self) -> IdKind {
         match self {
             NodeIds::Text { .. } => IdKind::Text,
@@ -86,26 +99,35 @@ impl NodeIds {
     }
 }
 
+/// A loaded graph: the adjacency, the original ids, and what reading found.
 #[derive(Debug)]
 pub struct Graph {
+    /// The adjacency.
     pub csr: Csr,
+    /// Each node's original id.
     pub ids: NodeIds,
+    /// What reading the input found.
     pub intake: Intake,
 }
 
 /// Degree extremes and mean, the first figures a user checks after loading.
 #[derive(Debug, Clone, Copy, PartialEq, serde::Serialize, serde::Deserialize)]
 pub struct DegreeSummary {
+    /// Smallest degree.
     pub min: u32,
+    /// Largest degree.
     pub max: u32,
+    /// Mean degree.
     pub mean: f64,
 }
 
 impl Graph {
+    /// Nodes.
     pub fn node_count(&self) -> usize {
         self.csr.node_count()
     }
 
+    /// Undirected edges.
     pub fn edge_count(&self) -> u64 {
         self.csr.edge_count()
     }

@@ -5,13 +5,17 @@ use serde::{Deserialize, Serialize};
 
 use crate::read::source::Compression;
 
+/// The input's grammar.
 #[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize, Deserialize, schemars::JsonSchema)]
 #[serde(rename_all = "kebab-case")]
 pub enum InputFormat {
+    /// Two ids per line.
     EdgeList,
+    /// Matrix Market coordinate format.
     MatrixMarket,
 }
 
+/// How ids are read.
 #[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize, Deserialize, schemars::JsonSchema)]
 #[serde(rename_all = "lowercase")]
 pub enum IdKind {
@@ -24,9 +28,13 @@ pub enum IdKind {
 /// A malformed line that was skipped (with `--skip-malformed`).
 #[derive(Debug, Clone, PartialEq, Eq, Serialize, Deserialize, schemars::JsonSchema)]
 pub struct BadLine {
+    /// Its line, from 1.
     pub line: u64,
+    /// Byte offset of the line.
     pub byte: u64,
+    /// What is wrong with it.
     pub problem: String,
+    /// The line's start, as written.
     pub excerpt: String,
 }
 
@@ -115,6 +123,7 @@ pub struct Stage {
     pub seconds: f64,
 }
 
+/// What reading an input found: sizes, cleaning counts and timings.
 #[derive(Debug, Clone, PartialEq, Serialize, Deserialize, schemars::JsonSchema)]
 pub struct Intake {
     /// The path as given.
@@ -123,7 +132,9 @@ pub struct Intake {
     /// counts below are that file's).
     #[serde(default, skip_serializing_if = "Option::is_none")]
     pub packed_from: Option<String>,
+    /// The grammar read.
     pub format: InputFormat,
+    /// The compression found.
     pub compression: Compression,
     /// zstd frames in the input (several frames decode in parallel).
     pub frames: Option<u64>,
@@ -131,8 +142,11 @@ pub struct Intake {
     pub input_bytes: u64,
     /// Bytes of text after decompression.
     pub text_bytes: u64,
+    /// Lines of text.
     pub lines: u64,
+    /// Blank lines.
     pub blank_lines: u64,
+    /// Comment lines (`#` or `%`).
     pub comment_lines: u64,
     /// The header line that was skipped, if any.
     pub header_line: Option<String>,
@@ -146,18 +160,22 @@ pub struct Intake {
     pub repeated_lines: u64,
     /// Node pairs listed in both directions (merged into one edge).
     pub reciprocal_pairs: u64,
+    /// Malformed lines skipped (with `--skip-malformed`).
     pub malformed_skipped: u64,
     /// The first few skipped lines, in file order.
     pub malformed_examples: Vec<BadLine>,
+    /// Nodes.
     pub nodes: u64,
     /// Undirected edges kept.
     pub edges: u64,
     /// Nodes left without edges (for example ones seen only in self-loops).
     pub isolated_nodes: u64,
+    /// Integer or text ids.
     pub id_kind: IdKind,
     /// With text ids: the first id that made them text (absent for integer ids).
     #[serde(default, skip_serializing_if = "Option::is_none")]
     pub first_text_id: Option<FirstTextId>,
+    /// Wall time of each stage of the build.
     pub stages: Vec<Stage>,
 }
 
@@ -206,6 +224,7 @@ impl Intake {
         }
     }
 
+    /// Wall time of the whole build.
     pub fn total_seconds(&self) -> f64 {
         self.stages.iter().map(|s| s.seconds).sum()
     }

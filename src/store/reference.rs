@@ -10,7 +10,9 @@ use crate::read::edgeline;
 /// edges as ordered pairs of them.
 #[derive(Debug, Clone, PartialEq, Eq, Default)]
 pub struct RefGraph {
+    /// Every node, as written.
     pub nodes: BTreeSet<Vec<u8>>,
+    /// Every edge, as an ordered pair of ids.
     pub edges: BTreeSet<(Vec<u8>, Vec<u8>)>,
 }
 
@@ -27,7 +29,9 @@ impl RefGraph {
 /// The reference's verdict on a malformed file: the 1-based line and the byte offset of its start.
 #[derive(Debug, Clone, PartialEq, Eq)]
 pub struct RefError {
+    /// Line of the first bad line, from 1.
     pub line: u64,
+    /// Its byte offset.
     pub byte: u64,
 }
 

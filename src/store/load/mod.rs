@@ -32,14 +32,16 @@ pub enum FormatChoice {
     /// Matrix Market if the file starts with its banner, else an edge list.
     #[default]
     Auto,
+    /// Two ids per line.
     EdgeList,
+    /// Matrix Market coordinate format.
     MatrixMarket,
 }
 
 /// Whether the first data line of an edge list is a column header.
 #[derive(Debug, Clone, Copy, PartialEq, Eq, Default)]
 pub enum HeaderChoice {
-    /// Guess (see [`edgeline::looks_like_header`]).
+    /// Guess (see `edgeline::looks_like_header`).
     #[default]
     Auto,
     /// The first data line is a header: skip it.
@@ -48,9 +50,12 @@ pub enum HeaderChoice {
     None,
 }
 
+/// How to read an input: grammar, header, malformed lines, limits.
 #[derive(Debug, Clone)]
 pub struct LoadOptions {
+    /// The grammar.
     pub format: FormatChoice,
+    /// Whether the first data line is a header.
     pub header: HeaderChoice,
     /// Skip and count malformed lines instead of stopping at the first.
     pub skip_malformed: bool,
@@ -58,7 +63,7 @@ pub struct LoadOptions {
     pub max_line: usize,
     /// Size of the pieces handed to workers; 0 chooses from the input size.
     pub piece_bytes: usize,
-    /// Most distinct nodes accepted (at most [`ids::MAX_NODES`]).
+    /// Most distinct nodes accepted (at most 2^32 - 1).
     pub max_nodes: u64,
     /// Bytes the build may allocate; a build that would need more stops with a clear error.
     pub memory_budget: u64,
