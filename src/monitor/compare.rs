@@ -47,6 +47,26 @@ fn side(
 }
 
 /// Compare `before` with `after` (each a `.json` report or a graph file read with `load_opts`).
+///
+/// ```
+/// use plumb::monitor::compare::compare;
+/// use plumb::monitor::track::ChangeRules;
+/// use plumb::profile::ProfileOptions;
+/// use plumb::progress::Quiet;
+/// use plumb::store::load::LoadOptions;
+///
+/// let dir = std::env::temp_dir().join(format!("plumb-doc-compare-{}", std::process::id()));
+/// std::fs::create_dir_all(&dir).unwrap();
+/// let (a, b) = (dir.join("week1.tsv"), dir.join("week2.tsv"));
+/// std::fs::write(&a, "ann bob\nbob cat\ncat ann\n").unwrap();
+/// std::fs::write(&b, "ann bob\nbob cat\ncat dan\n").unwrap();
+/// let c = compare(&a, &b, &LoadOptions::default(), &ProfileOptions::default(),
+///                 &ChangeRules::default(), &Quiet)?;
+/// let churn = c.churn.unwrap();
+/// assert_eq!((churn.nodes_appeared, churn.edges_vanished), (1, 1));
+/// # std::fs::remove_dir_all(&dir).ok();
+/// # Ok::<(), plumb::Error>(())
+/// ```
 pub fn compare(
     before: &Path,
     after: &Path,

@@ -79,6 +79,24 @@ pub struct Tracked {
 
 /// Profile `input` and add it to the history in `dir` (created on first use). The input is read
 /// before the history is touched, so a missing input leaves no directory behind.
+///
+/// ```
+/// use plumb::monitor::track::{TrackOptions, track};
+/// use plumb::profile::ProfileOptions;
+/// use plumb::progress::Quiet;
+/// use plumb::store::load::LoadOptions;
+///
+/// let dir = std::env::temp_dir().join(format!("plumb-doc-track-{}", std::process::id()));
+/// let export = dir.with_extension("tsv");
+/// std::fs::write(&export, "1 2\n2 3\n3 1\n").unwrap();
+/// let t = track(&dir, &export, &LoadOptions::default(), &ProfileOptions::default(),
+///               &TrackOptions::default(), &Quiet)?;
+/// assert_eq!(t.entry.seq, 1);
+/// assert!(t.comparisons.is_empty()); // the first snapshot is the baseline
+/// # std::fs::remove_dir_all(&dir).ok();
+/// # std::fs::remove_file(&export).ok();
+/// # Ok::<(), plumb::Error>(())
+/// ```
 pub fn track(
     dir: &Path,
     input: &Path,

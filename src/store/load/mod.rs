@@ -83,7 +83,20 @@ impl Default for LoadOptions {
     }
 }
 
-/// Load an edge file or a store file.
+/// Load an edge file (plain, zstd or gzip; edge list or Matrix Market) or a store file.
+///
+/// ```
+/// use plumb::progress::Quiet;
+/// use plumb::store::load::{LoadOptions, load};
+///
+/// let path = std::env::temp_dir().join(format!("plumb-doc-load-{}.tsv", std::process::id()));
+/// std::fs::write(&path, "# who replied to whom\n1 2\n2 1\n2 3\n3 3\n").unwrap();
+/// let g = load(&path, &LoadOptions::default(), &Quiet)?;
+/// assert_eq!((g.node_count(), g.edge_count()), (3, 2));
+/// assert_eq!((g.intake.reciprocal_pairs, g.intake.self_loops), (1, 1));
+/// # std::fs::remove_file(&path).ok();
+/// # Ok::<(), plumb::Error>(())
+/// ```
 pub fn load(path: &Path, opts: &LoadOptions, progress: &dyn Progress) -> Result<Graph> {
     load_input(InputBytes::open(path)?, opts, progress)
 }
