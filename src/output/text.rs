@@ -471,16 +471,6 @@ fn distance_text(out: &mut String, p: &Profile) {
                 "pairs at d",
                 format!("{} (unordered)", dist.join(" · ")),
             );
-            if s.unreachable_pairs_in_graph > 0 {
-                row(
-                    out,
-                    "unreached",
-                    format!(
-                        "{} unordered pairs of the whole graph are in different components",
-                        count(s.unreachable_pairs_in_graph / 2)
-                    ),
-                );
-            }
         }
         Distances::Estimated(e) => {
             row(out, "mean", fig(&e.mean, 4));
@@ -504,19 +494,24 @@ fn distance_text(out: &mut String, p: &Profile) {
                 "pairs at d",
                 format!("{} (share of pairs, estimated)", dist.join(" · ")),
             );
-            if e.unreachable_pairs_in_graph > 0 {
-                row(
-                    out,
-                    "unreached",
-                    format!(
-                        "{} unordered pairs of the whole graph are in different components",
-                        count(e.unreachable_pairs_in_graph / 2)
-                    ),
-                );
-            }
         }
         Distances::Empty => row(out, "mean", "no pairs: the graph has no edges"),
         Distances::NotRequested => {}
+    }
+    let unreachable = match &p.distances {
+        Distances::Exact(s) => s.unreachable_pairs_in_graph,
+        Distances::Estimated(e) => e.unreachable_pairs_in_graph,
+        Distances::Empty | Distances::NotRequested => 0,
+    };
+    if unreachable > 0 {
+        row(
+            out,
+            "unreached",
+            format!(
+                "{} unordered pairs of the whole graph are in different components",
+                count(unreachable / 2)
+            ),
+        );
     }
 }
 
