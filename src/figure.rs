@@ -63,6 +63,17 @@ pub struct Interval {
     pub level: f64,
 }
 
+impl Interval {
+    /// The interval `centre ± half` at `level`.
+    pub fn around(centre: f64, half: f64, level: f64) -> Interval {
+        Interval {
+            low: centre - half,
+            high: centre + half,
+            level,
+        }
+    }
+}
+
 /// One reported figure: its value, how it was obtained, on how much data, and for estimates its
 /// standard error and interval. The fields are private and the constructors are the only way to
 /// make one, so an estimate without an interval cannot exist.

@@ -219,11 +219,7 @@ pub fn empirical_reference(
             ),
             r as u64,
             se,
-            Interval {
-                low: mean - half,
-                high: mean + half,
-                level,
-            },
+            Interval::around(mean, half, level),
         ))
     };
     Reference {

@@ -59,11 +59,7 @@ fn mean_of(values: &[f64], level: f64, what: &str) -> Figure {
         &format!("{what}, mean over {r} seeded graphs, t interval"),
         r as u64,
         se,
-        Interval {
-            low: mean - half,
-            high: mean + half,
-            level,
-        },
+        Interval::around(mean, half, level),
     )
 }
 
