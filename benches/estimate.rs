@@ -80,7 +80,8 @@ fn main() {
         let mut s = started.lock().unwrap();
         rounds.lock().unwrap().push(s.elapsed().as_secs_f64());
         *s = Instant::now();
-    });
+    })
+    .expect("64 registers are in range");
     let t_ball = t.elapsed().as_secs_f64();
     let rounds = rounds.into_inner().unwrap();
     let first = rounds[0];

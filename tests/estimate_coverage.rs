@@ -87,7 +87,8 @@ fn karate_club_estimates_converge_to_the_published_values() {
             ..Default::default()
         },
         &|_| {},
-    );
+    )
+    .expect("valid options");
     assert!((b.mean.value() - 2.408200).abs() < 0.01, "{:?}", b.mean);
 }
 
@@ -121,7 +122,8 @@ fn ring_lattice_estimates_converge_to_the_closed_forms() {
             ..Default::default()
         },
         &|_| {},
-    );
+    )
+    .expect("valid options");
     assert!((b.mean.value() - l).abs() < 0.03 * l, "{:?} vs {l}", b.mean);
 }
 
@@ -213,7 +215,7 @@ fn hyperball_intervals_cover_and_land_within_three_standard_errors() {
                 seed,
                 ..Default::default()
             };
-            let e = estimate(&sub, &opts, &|_| {});
+            let e = estimate(&sub, &opts, &|_| {}).expect("valid options");
             cm += covers(&e.mean, mean) as u32;
             ce += covers(&e.effective_diameter, eff) as u32;
             within3 += ((e.mean.value() - mean).abs() <= 3.0 * e.mean.std_error().unwrap()) as u32;
@@ -226,7 +228,7 @@ fn hyperball_intervals_cover_and_land_within_three_standard_errors() {
         assert!((0.92..=0.985).contains(&rm), "{name}: mean coverage {rm}");
         assert!((0.92..=0.985).contains(&re), "{name}: eff. diameter {re}");
         // The acceptance check proper: the default run (seed 1) within 3 standard errors.
-        let e = estimate(&sub, &BallOptions::default(), &|_| {});
+        let e = estimate(&sub, &BallOptions::default(), &|_| {}).expect("valid options");
         assert!(
             (e.mean.value() - mean).abs() <= 3.0 * e.mean.std_error().unwrap(),
             "{name}: {:?} vs {mean}",

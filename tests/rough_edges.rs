@@ -285,3 +285,40 @@ fn the_trend_page_names_the_history_by_its_folder() {
     );
     assert!(!html.contains(&dir.path().display().to_string()));
 }
+
+#[test]
+fn hyperball_options_out_of_range_are_errors_not_panics() {
+    use plumb::estimate::hyperball::{BallOptions, estimate, neighbourhood_function};
+    let g = plumb::models::generate::ring_lattice(50, 4);
+    let one_run = BallOptions {
+        repeats: 1,
+        ..Default::default()
+    };
+    let e = estimate(&g, &one_run, &|_| {}).unwrap_err();
+    assert!(e.to_string().contains("at least two runs"), "{e}");
+    let e = neighbourhood_function(&g, 30, 1, &|_| {}).unwrap_err();
+    assert!(e.to_string().contains("2^4 to 2^16"), "{e}");
+    // Through the profile, refused options fall back to sampled sources and say so.
+    let gr = plumb::Graph {
+        ids: plumb::store::graph::NodeIds::Range { first: 0, len: 50 },
+        intake: plumb::store::intake::Intake::generated("lattice", 50, g.edge_count(), 0),
+        csr: g,
+    };
+    let opts = plumb::profile::ProfileOptions {
+        distances: plumb::profile::Choice::Estimate,
+        distance_estimator: plumb::profile::DistanceEstimator::Ball,
+        ball: one_run,
+        ..Default::default()
+    };
+    let (p, _) = plumb::profile::profile(&gr, &opts, &plumb::progress::Quiet);
+    let d = p
+        .plan
+        .iter()
+        .find(|d| d.method.contains("sampled sources"))
+        .unwrap();
+    assert!(
+        d.reason.contains("HyperBall refused its options"),
+        "{}",
+        d.reason
+    );
+}

@@ -16,6 +16,7 @@ use xxhash_rust::xxh3::xxh3_64_with_seed;
 
 use super::hll::{count, register_of};
 use super::interval::t_for;
+use crate::error::ParamError;
 use crate::exact::distances::effective_diameter;
 use crate::figure::{Figure, Interval};
 use crate::numeric::det_sum;
@@ -86,11 +87,12 @@ pub fn neighbourhood_function(
     log2_registers: u8,
     seed: u64,
     round_done: &(dyn Fn(usize) + Sync),
-) -> Vec<f64> {
-    assert!(
-        (4..=16).contains(&log2_registers),
-        "registers per counter must be 2^4..2^16"
-    );
+) -> Result<Vec<f64>, ParamError> {
+    if !(4..=16).contains(&log2_registers) {
+        return Err(ParamError::from(format!(
+            "HyperBall registers per counter must be 2^4 to 2^16 (got 2^{log2_registers})"
+        )));
+    }
     let n = g.node_count();
     let b = log2_registers as u32;
     let m = 1usize << b;
@@ -162,7 +164,7 @@ pub fn neighbourhood_function(
         nt.push(chunked_sum(&estimate));
         round_done(nt.len() - 1);
     }
-    nt
+    Ok(nt)
 }
 
 /// Sum in fixed chunks, then the chunk sums in order: the same bits on any thread count.
@@ -215,8 +217,17 @@ pub fn derived(nt: &[f64]) -> Derived {
 
 /// HyperBall with `opts.repeats` independent hash seeds, and t intervals over the repetitions
 /// for the mean distance, effective diameter, reachable pairs and distance distribution.
-pub fn estimate(g: &Csr, opts: &BallOptions, round_done: &(dyn Fn(usize) + Sync)) -> BallEstimate {
-    assert!(opts.repeats >= 2, "intervals need at least two repetitions");
+pub fn estimate(
+    g: &Csr,
+    opts: &BallOptions,
+    round_done: &(dyn Fn(usize) + Sync),
+) -> Result<BallEstimate, ParamError> {
+    if opts.repeats < 2 {
+        return Err(ParamError::from(format!(
+            "HyperBall intervals need at least two runs (got {})",
+            opts.repeats
+        )));
+    }
     let runs: Vec<Vec<f64>> = (0..opts.repeats as u64)
         .map(|i| {
             let seed = opts
@@ -225,7 +236,7 @@ pub fn estimate(g: &Csr, opts: &BallOptions, round_done: &(dyn Fn(usize) + Sync)
                 .wrapping_add(i.wrapping_mul(0xD1B5_4A32_D192_ED03));
             neighbourhood_function(g, opts.log2_registers, seed, round_done)
         })
-        .collect();
+        .collect::<Result<_, _>>()?;
     // The figures are ratios of sums of N(t), so each run's figure carries an O(1/registers)
     // bias; deriving them from the runs' average N(t) divides that bias by the run count, and
     // the jackknife over runs gives the standard error of exactly that estimator.
@@ -265,7 +276,7 @@ pub fn estimate(g: &Csr, opts: &BallOptions, round_done: &(dyn Fn(usize) + Sync)
             )
         })
         .collect();
-    BallEstimate {
+    Ok(BallEstimate {
         mean: fig(full.mean, &|x| x.mean, 0.0, f64::INFINITY),
         effective_diameter: fig(
             full.effective_diameter,
@@ -283,7 +294,7 @@ pub fn estimate(g: &Csr, opts: &BallOptions, round_done: &(dyn Fn(usize) + Sync)
         runs,
         registers,
         counter_rse: counter_rse(registers as usize),
-    }
+    })
 }
 
 /// A figure with its jackknife standard error from the `r` leave-one-out values (Efron & Stein,
@@ -321,7 +332,7 @@ mod tests {
         // A path of 300 nodes: N(0) ~ n, N(∞) ~ n², each within a few counter errors.
         let e: Vec<(u32, u32)> = (0..299).map(|i| (i, i + 1)).collect();
         let g = Csr::from_edges(300, &e);
-        let nt = neighbourhood_function(&g, 8, 5, &|_| {});
+        let nt = neighbourhood_function(&g, 8, 5, &|_| {}).unwrap();
         assert_eq!(nt.len(), 300, "the diameter is 299 rounds");
         assert!((nt[0] / 300.0 - 1.0).abs() < 0.01, "{}", nt[0]);
         let rse = counter_rse(256);

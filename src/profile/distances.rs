@@ -6,6 +6,7 @@
 //! Diameter bounds: Magnien, Latapy & Habib (ACM JEA 2009); iFUB: Crescenzi, Grossi, Habib,
 //! Lanzi & Marino (Theor. Comput. Sci. 514, 2013).
 
+use crate::error::ParamError;
 use crate::estimate::distance as sampled;
 use crate::estimate::hyperball::{self, BallOptions};
 use crate::exact::components::{self, Components};
@@ -260,10 +261,20 @@ fn estimate_distances(
             secs(rival_secs)
         );
     }
-    let e = if use_ball {
+    let ball = if use_ball {
         by_ball(sub, opts, clock)
     } else {
-        by_sources(sub, pilot.map(|(p, _)| p), opts, clock)
+        Ok(None)
+    };
+    let e = match ball {
+        Ok(Some(e)) => e,
+        Ok(None) => by_sources(sub, pilot.map(|(p, _)| p), opts, clock),
+        Err(refused) => {
+            // Options a library caller set out of range: say so and measure another way.
+            clock.done(StageName::HyperBall);
+            reason += &format!("; HyperBall refused its options ({refused}), sampled sources ran");
+            by_sources(sub, None, opts, clock)
+        }
     };
     let est = EstimatedDistances {
         node_set: giant.node_set.to_string(),
@@ -286,17 +297,22 @@ fn estimate_distances(
     (est, decision)
 }
 
-/// HyperBall with independent hash seeds, jackknife intervals.
-fn by_ball(sub: &Csr, opts: &ProfileOptions, clock: &mut Clock) -> Estimated {
+/// HyperBall with independent hash seeds, jackknife intervals; an error when the options are
+/// out of range.
+fn by_ball(
+    sub: &Csr,
+    opts: &ProfileOptions,
+    clock: &mut Clock,
+) -> Result<Option<Estimated>, ParamError> {
     clock.start(StageName::HyperBall);
     let ball = BallOptions {
         level: opts.level,
         seed: opts.seed,
         ..opts.ball
     };
-    let e = hyperball::estimate(sub, &ball, &|_| clock.progress.advance(1));
+    let e = hyperball::estimate(sub, &ball, &|_| clock.progress.advance(1))?;
     clock.done(StageName::HyperBall);
-    Estimated {
+    Ok(Some(Estimated {
         method: format!(
             "HyperBall, {} registers per node × {} hash seeds (each counter ±{:.1}% relative \
              standard error)",
@@ -310,7 +326,7 @@ fn by_ball(sub: &Csr, opts: &ProfileOptions, clock: &mut Clock) -> Estimated {
         sources: None,
         registers: Some(e.registers),
         counter_rse: Some(e.counter_rse),
-    }
+    }))
 }
 
 /// BFS from sampled sources to the requested margin, finishing the planner's pilot if it ran.
