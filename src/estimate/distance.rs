@@ -13,7 +13,7 @@ use rustc_hash::FxHashMap;
 
 use super::interval::z_for;
 use super::sample::mean_interval;
-use crate::exact::distances::{effective_diameter, sources_batch_each};
+use crate::exact::distances::{BatchBuffers, effective_diameter, sources_batch_each};
 use crate::figure::{Figure, Interval};
 use crate::numeric::{lower_quantile, mean_variance};
 use crate::store::csr::Csr;
@@ -69,9 +69,9 @@ fn search(g: &Csr, sources: &[u32]) -> PerSource {
     let batches: Vec<PerSource> = sources
         .par_chunks(64)
         .map_init(
-            || (vec![0u64; n], vec![0u64; n], vec![0u64; n], Vec::new()),
-            |(seen, frontier, next, each), batch| {
-                sources_batch_each(g, batch, seen, frontier, next, each);
+            || (BatchBuffers::new(n), Vec::new()),
+            |(bufs, each), batch| {
+                sources_batch_each(g, batch, bufs, each);
                 (0..batch.len())
                     .map(|i| each.iter().map(|level| level[i]).collect())
                     .collect()

@@ -16,7 +16,7 @@ use rayon::prelude::*;
 use serde::{Deserialize, Serialize};
 
 use crate::exact::bfs::{Bfs, UNREACHED};
-use crate::exact::distances::sources_batch;
+use crate::exact::distances::{BatchBuffers, sources_batch};
 use crate::store::csr::Csr;
 
 /// The double sweep and the BFS levels of the central node.
@@ -131,12 +131,9 @@ pub fn ifub(g: &Csr, s: Sweep, budget: f64) -> Diameter {
         let eccs: Vec<(u32, u32)> = fringe
             .par_chunks(64)
             .map_init(
-                || {
-                    let n = g.node_count();
-                    (vec![0u64; n], vec![0u64; n], vec![0u64; n])
-                },
-                |(seen, frontier, next), chunk| {
-                    let (_, ecc) = sources_batch(g, chunk, seen, frontier, next);
+                || BatchBuffers::new(g.node_count()),
+                |bufs, chunk| {
+                    let (_, ecc) = sources_batch(g, chunk, bufs);
                     chunk.iter().copied().zip(ecc).collect::<Vec<_>>()
                 },
             )

@@ -33,11 +33,11 @@ pub fn all_pairs_sources(g: &Csr, sources: std::ops::Range<u32>) -> AllPairs {
     let results: Vec<(Vec<u64>, Vec<u32>)> = (0..batches)
         .into_par_iter()
         .map_init(
-            || (vec![0u64; n], vec![0u64; n], vec![0u64; n]),
-            |(seen, frontier, next), b| {
+            || BatchBuffers::new(n),
+            |bufs, b| {
                 let a = lo + b * 64;
                 let sources: Vec<u32> = (a as u32..(a + 64).min(hi) as u32).collect();
-                sources_batch(g, &sources, seen, frontier, next)
+                sources_batch(g, &sources, bufs)
             },
         )
         .collect();
@@ -58,16 +58,29 @@ pub fn all_pairs_sources(g: &Csr, sources: std::ops::Range<u32>) -> AllPairs {
     }
 }
 
+/// The three word arrays a bit-parallel batch works in (one word per node), reused across
+/// batches by each worker.
+pub struct BatchBuffers {
+    seen: Vec<u64>,
+    frontier: Vec<u64>,
+    next: Vec<u64>,
+}
+
+impl BatchBuffers {
+    /// Buffers for graphs of `n` nodes.
+    pub fn new(n: usize) -> Self {
+        BatchBuffers {
+            seen: vec![0; n],
+            frontier: vec![0; n],
+            next: vec![0; n],
+        }
+    }
+}
+
 /// One batch of up to 64 sources (distinct): returns ordered-pair counts by distance from them
-/// and their eccentricities. The three buffers have one word per node and are reused.
-pub fn sources_batch(
-    g: &Csr,
-    sources: &[u32],
-    seen: &mut [u64],
-    frontier: &mut Vec<u64>,
-    next: &mut Vec<u64>,
-) -> (Vec<u64>, Vec<u32>) {
-    batch::<false>(g, sources, seen, frontier, next, &mut Vec::new())
+/// and their eccentricities.
+pub fn sources_batch(g: &Csr, sources: &[u32], bufs: &mut BatchBuffers) -> (Vec<u64>, Vec<u32>) {
+    batch::<false>(g, sources, bufs, &mut Vec::new())
 }
 
 /// As [`sources_batch`], and also `per_source[d - 1][i]` = nodes at distance d from
@@ -75,23 +88,24 @@ pub fn sources_batch(
 pub fn sources_batch_each(
     g: &Csr,
     sources: &[u32],
-    seen: &mut [u64],
-    frontier: &mut Vec<u64>,
-    next: &mut Vec<u64>,
+    bufs: &mut BatchBuffers,
     per_source: &mut Vec<[u64; 64]>,
 ) -> (Vec<u64>, Vec<u32>) {
     per_source.clear();
-    batch::<true>(g, sources, seen, frontier, next, per_source)
+    batch::<true>(g, sources, bufs, per_source)
 }
 
 fn batch<const EACH: bool>(
     g: &Csr,
     sources: &[u32],
-    seen: &mut [u64],
-    frontier: &mut Vec<u64>,
-    next: &mut Vec<u64>,
+    bufs: &mut BatchBuffers,
     per_source: &mut Vec<[u64; 64]>,
 ) -> (Vec<u64>, Vec<u32>) {
+    let BatchBuffers {
+        seen,
+        frontier,
+        next,
+    } = bufs;
     let k = sources.len();
     assert!(k <= 64, "a batch holds at most 64 sources");
     let full = if k == 64 { u64::MAX } else { (1u64 << k) - 1 };

@@ -7,7 +7,6 @@ use rayon::prelude::*;
 use super::{FILL_BATCH, Loader, Scanned};
 use crate::error::Result;
 use crate::progress::Unit;
-use crate::read::pieces;
 use crate::read::scan::{self, ChunkOutcome, ScanRules};
 use crate::read::source::Compression;
 use crate::store::fill::Filler;
@@ -54,10 +53,7 @@ impl Loader<'_> {
         let keep_limit = self.opts.memory_budget / 2;
         self.begin("scanning");
         let rules = self.rules.clone();
-        let (states, info) = pieces::run(
-            self.src,
-            self.threads,
-            self.progress,
+        let (states, info) = self.each_piece(
             || IntWorker {
                 tally: IntTally::new(cap),
                 outcomes: Vec::new(),
@@ -74,8 +70,8 @@ impl Loader<'_> {
                 }
                 go_on
             },
-        )
-        .map_err(|f| self.stream_fault(f, &[]))?;
+            &[],
+        )?;
         let mut outcomes = Vec::new();
         let mut tallies = Vec::new();
         let mut kept = Vec::new();
@@ -145,10 +141,7 @@ impl Loader<'_> {
         } else {
             self.begin("filling");
             let rules = &self.rules;
-            pieces::run(
-                self.src,
-                self.threads,
-                self.progress,
+            self.each_piece(
                 || (),
                 |_, i, bytes, base| {
                     // Parse a batch, then map and store it in a tight loop: the random writes
@@ -175,8 +168,8 @@ impl Loader<'_> {
                     flush(&mut batch);
                     true
                 },
-            )
-            .map_err(|f| self.stream_fault(f, &scanned.outcomes))?;
+                &scanned.outcomes,
+            )?;
         }
         self.stage_done(StageName::Fill);
         let ids = NodeIds::from_ints(index.into_ids());

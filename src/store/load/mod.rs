@@ -18,7 +18,7 @@ use crate::error::{Error, Position, Result};
 use crate::progress::{Progress, Unit};
 use crate::read::edgeline::{self, Line};
 use crate::read::mtx::{self, Header as MtxHeader};
-use crate::read::pieces::Source;
+use crate::read::pieces::{self, Source};
 use crate::read::scan::{self, ChunkOutcome, Counts, LineError, MtxRules, ScanRules};
 use crate::read::source::{self, Compression, InputBytes, Sniffed, StreamFault};
 use crate::store::fill::Filler;
@@ -500,6 +500,18 @@ impl<'a> Loader<'a> {
                 self.positioned(&LineError::TooLong, line, byte_base, "")
             }
         }
+    }
+
+    /// Every piece of the input through `work` on the worker threads (see `read::pieces`); a
+    /// stream fault becomes a positioned error, placed by the `outcomes` of an earlier pass.
+    fn each_piece<W: Send>(
+        &self,
+        init: impl Fn() -> W + Sync,
+        work: impl Fn(&mut W, usize, &[u8], u64) -> bool + Sync,
+        outcomes: &[ChunkOutcome],
+    ) -> Result<(Vec<W>, source::DecodeInfo)> {
+        pieces::run(self.src, self.threads, self.progress, init, work)
+            .map_err(|f| self.stream_fault(f, outcomes))
     }
 
     fn max_nodes(&self) -> u64 {

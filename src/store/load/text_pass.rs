@@ -3,7 +3,6 @@
 
 use super::{FirstTextId, Loader, Scanned};
 use crate::error::{Result, excerpt};
-use crate::read::pieces;
 use crate::read::scan;
 use crate::store::fill::Filler;
 use crate::store::graph::{Graph, NodeIds};
@@ -16,10 +15,7 @@ impl Loader<'_> {
         self.rules.text_ids = true;
         self.begin("scanning text ids");
         let rules = self.rules.clone();
-        let (states, info) = pieces::run(
-            self.src,
-            self.threads,
-            self.progress,
+        let (states, info) = self.each_piece(
             || (TextTally::default(), Vec::new(), Vec::new()),
             |(t, outcomes, firsts), i, bytes, base| {
                 let mut first = None;
@@ -42,8 +38,8 @@ impl Loader<'_> {
                 outcomes.push(o);
                 go_on
             },
-        )
-        .map_err(|f| self.stream_fault(f, &[]))?;
+            &[],
+        )?;
         let mut tallies = Vec::new();
         let mut outcomes = Vec::new();
         let mut firsts = Vec::new();
@@ -60,10 +56,7 @@ impl Loader<'_> {
         self.check_fill_budget(&index.raw_degree)?;
         let filler = Filler::new(&index.raw_degree);
         self.begin("filling");
-        pieces::run(
-            self.src,
-            self.threads,
-            self.progress,
+        self.each_piece(
             || (),
             |_, i, bytes, base| {
                 scan::scan_chunk(i, bytes, base, &rules, |a, b| {
@@ -74,8 +67,8 @@ impl Loader<'_> {
                 });
                 true
             },
-        )
-        .map_err(|f| self.stream_fault(f, &scanned.outcomes))?;
+            &scanned.outcomes,
+        )?;
         self.stage_done(StageName::Fill);
         let ids = NodeIds::Text {
             offsets: index.offsets.into(),
