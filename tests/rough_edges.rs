@@ -1,14 +1,9 @@
 //! Rough edges a new user hits, each pinned by the exit code, message or key a user sees.
 
-use std::process::{Command, Output};
+use std::process::Output;
 
-fn plumb(args: &[&str]) -> Output {
-    Command::new(env!("CARGO_BIN_EXE_plumb"))
-        .args(args)
-        .current_dir(env!("CARGO_MANIFEST_DIR"))
-        .output()
-        .unwrap()
-}
+mod common;
+use common::plumb;
 
 fn text(o: &Output) -> String {
     String::from_utf8_lossy(&o.stdout).into_owned()
@@ -56,22 +51,20 @@ fn missing_files_are_io_errors_and_leave_nothing_behind() {
     let history = dir.path().join("history");
     // trend of a missing history: exit 4, no page.
     let page = dir.path().join("trend.html");
-    let out = plumb(&[
-        "trend",
-        history.to_str().unwrap(),
-        "-o",
-        page.to_str().unwrap(),
-    ]);
+    let trend = || {
+        plumb(&[
+            "trend",
+            history.to_str().unwrap(),
+            "-o",
+            page.to_str().unwrap(),
+        ])
+    };
+    let out = trend();
     assert_eq!(out.status.code(), Some(4), "{}", err(&out));
     assert!(!page.exists());
     // An existing but empty history has nothing to draw.
     std::fs::create_dir(&history).unwrap();
-    let out = plumb(&[
-        "trend",
-        history.to_str().unwrap(),
-        "-o",
-        page.to_str().unwrap(),
-    ]);
+    let out = trend();
     assert_eq!(out.status.code(), Some(3), "{}", err(&out));
     assert!(err(&out).contains("no readable snapshot"), "{}", err(&out));
     std::fs::remove_dir(&history).unwrap();

@@ -113,3 +113,12 @@ pub fn assert_charts_have_points(page: &str) {
         assert!(chart.contains("<title"), "chart {id} has no title");
     }
 }
+
+/// Run the `plumb` binary from the checkout's root, as a user would.
+pub fn plumb(args: &[&str]) -> std::process::Output {
+    std::process::Command::new(env!("CARGO_BIN_EXE_plumb"))
+        .args(args)
+        .current_dir(env!("CARGO_MANIFEST_DIR"))
+        .output()
+        .unwrap()
+}
