@@ -342,148 +342,144 @@ fn small_world_charts(
     mean_distance: Option<&Figure>,
     charts: &mut Vec<Chart>,
 ) {
-    {
-        let mut series = Vec::new();
-        if let (Some(c), Some(l)) = (&p.clustering, mean_distance) {
+    let mut series = Vec::new();
+    if let (Some(c), Some(l)) = (&p.clustering, mean_distance) {
+        series.push(Series {
+            name: "this graph".into(),
+            mark: Mark::Circle,
+            line: false,
+            points: vec![Point {
+                x: l.value(),
+                y: c.transitivity.value(),
+                interval: point(0.0, &c.transitivity).interval,
+            }],
+        });
+    }
+    // The first random reference (sampled ones come first), the first degree-preserving
+    // one, and the lattice: one marker shape each.
+    let pick = |prefix: &str| sw.references.iter().find(|r| r.name.starts_with(prefix));
+    for (label, r, mark) in [
+        ("random", pick("random,"), Mark::Square),
+        (
+            "random, same degrees",
+            pick("random with the same degrees"),
+            Mark::Diamond,
+        ),
+        ("ring lattice", pick("ring lattice"), Mark::Triangle),
+    ] {
+        if let Some(r) = r
+            && let (Some(t), Some(l)) = (&r.transitivity, &r.mean_distance)
+        {
             series.push(Series {
-                name: "this graph".into(),
-                mark: Mark::Circle,
+                name: label.into(),
+                mark,
                 line: false,
                 points: vec![Point {
                     x: l.value(),
-                    y: c.transitivity.value(),
-                    interval: point(0.0, &c.transitivity).interval,
+                    y: t.value(),
+                    interval: point(0.0, t).interval,
                 }],
             });
         }
-        // The first random reference (sampled ones come first), the first degree-preserving
-        // one, and the lattice: one marker shape each.
-        let pick = |prefix: &str| sw.references.iter().find(|r| r.name.starts_with(prefix));
-        for (label, r, mark) in [
-            ("random", pick("random,"), Mark::Square),
-            (
-                "random, same degrees",
-                pick("random with the same degrees"),
-                Mark::Diamond,
-            ),
-            ("ring lattice", pick("ring lattice"), Mark::Triangle),
-        ] {
-            if let Some(r) = r
-                && let (Some(t), Some(l)) = (&r.transitivity, &r.mean_distance)
-            {
-                series.push(Series {
-                    name: label.into(),
-                    mark,
-                    line: false,
-                    points: vec![Point {
-                        x: l.value(),
-                        y: t.value(),
-                        interval: point(0.0, t).interval,
-                    }],
-                });
-            }
-        }
-        let xs: Vec<f64> = series
-            .iter()
-            .flat_map(|s| s.points.iter().map(|p| p.x))
-            .collect();
-        let ys: Vec<f64> = series
-            .iter()
-            .flat_map(|s| s.points.iter().map(|p| p.y))
-            .collect();
-        let x = Axis::fit("mean distance L (hops, log scale)", true, xs, false);
-        let y = Axis::fit("transitivity C (log scale)", true, ys, false);
-        charts.push((
-            chart(
-                "small-world-plane",
-                "The graph among its references",
-                "Transitivity against mean distance for the graph, its random references and the ring lattice.",
-                &x,
-                &y,
-                &series,
-                &[],
-            ),
-            "Small-world graphs sit high like the lattice and left like the random graphs."
-                .to_string(),
-        ));
     }
+    let xs: Vec<f64> = series
+        .iter()
+        .flat_map(|s| s.points.iter().map(|p| p.x))
+        .collect();
+    let ys: Vec<f64> = series
+        .iter()
+        .flat_map(|s| s.points.iter().map(|p| p.y))
+        .collect();
+    let x = Axis::fit("mean distance L (hops, log scale)", true, xs, false);
+    let y = Axis::fit("transitivity C (log scale)", true, ys, false);
+    charts.push((
+        chart(
+            "small-world-plane",
+            "The graph among its references",
+            "Transitivity against mean distance for the graph, its random references and the ring lattice.",
+            &x,
+            &y,
+            &series,
+            &[],
+        ),
+        "Small-world graphs sit high like the lattice and left like the random graphs."
+            .to_string(),
+    ));
     coefficient_chart(sw, charts);
 }
 
 /// Omega and propensity against their thresholds, with intervals.
 fn coefficient_chart(sw: &SmallWorld, charts: &mut Vec<Chart>) {
-    {
-        let names: Vec<String> = sw
-            .coefficients
-            .iter()
-            .flat_map(|c| {
-                let short = if c.clustering == "transitivity" {
-                    "C"
-                } else {
-                    "avg C"
-                };
-                [format!("omega ({short})"), format!("propensity ({short})")]
-            })
-            .collect();
-        let refs: Vec<&str> = names.iter().map(String::as_str).collect();
-        let pts: Vec<Point> = sw
-            .coefficients
-            .iter()
-            .enumerate()
-            .flat_map(|(i, c)| {
-                [
-                    point(2.0 * i as f64 + 1.0, &c.omega),
-                    point(2.0 * i as f64 + 2.0, &c.propensity),
-                ]
-            })
-            .collect();
-        if !pts.is_empty() {
-            let x = Axis::categories("coefficient (clustering used)", &refs);
-            let y = Axis::fit(
-                "value",
-                false,
-                pts.iter()
-                    .flat_map(|p| {
-                        let (a, b) = p.interval.unwrap_or((p.y, p.y));
-                        [a, b]
-                    })
-                    .chain([-1.0, 1.0]),
-                false,
-            );
-            charts.push((
-                chart(
-                    "small-world-coefficients",
-                    "Small-world coefficients against their thresholds",
-                    "Omega (small-world between -0.5 and 0.5) and small-world propensity (small-world above 0.6), with intervals.",
-                    &x,
-                    &y,
-                    &[Series {
-                        name: "coefficient".into(),
-                        mark: Mark::Diamond,
-                        line: false,
-                        points: pts,
-                    }],
-                    &[
-                        Guide {
-                            y: 0.5,
-                            label: "omega +0.5".into(),
-                            at_left: false,
-                        },
-                        Guide {
-                            y: -0.5,
-                            label: "omega -0.5".into(),
-                            at_left: false,
-                        },
-                        Guide {
-                            y: 0.6,
-                            label: "propensity 0.6".into(),
-                            at_left: true,
-                        },
-                    ],
-                ),
-                "Sigma is in the table: its scale grows with n.".to_string(),
-            ));
-        }
+    let names: Vec<String> = sw
+        .coefficients
+        .iter()
+        .flat_map(|c| {
+            let short = if c.clustering == "transitivity" {
+                "C"
+            } else {
+                "avg C"
+            };
+            [format!("omega ({short})"), format!("propensity ({short})")]
+        })
+        .collect();
+    let refs: Vec<&str> = names.iter().map(String::as_str).collect();
+    let pts: Vec<Point> = sw
+        .coefficients
+        .iter()
+        .enumerate()
+        .flat_map(|(i, c)| {
+            [
+                point(2.0 * i as f64 + 1.0, &c.omega),
+                point(2.0 * i as f64 + 2.0, &c.propensity),
+            ]
+        })
+        .collect();
+    if !pts.is_empty() {
+        let x = Axis::categories("coefficient (clustering used)", &refs);
+        let y = Axis::fit(
+            "value",
+            false,
+            pts.iter()
+                .flat_map(|p| {
+                    let (a, b) = p.interval.unwrap_or((p.y, p.y));
+                    [a, b]
+                })
+                .chain([-1.0, 1.0]),
+            false,
+        );
+        charts.push((
+            chart(
+                "small-world-coefficients",
+                "Small-world coefficients against their thresholds",
+                "Omega (small-world between -0.5 and 0.5) and small-world propensity (small-world above 0.6), with intervals.",
+                &x,
+                &y,
+                &[Series {
+                    name: "coefficient".into(),
+                    mark: Mark::Diamond,
+                    line: false,
+                    points: pts,
+                }],
+                &[
+                    Guide {
+                        y: 0.5,
+                        label: "omega +0.5".into(),
+                        at_left: false,
+                    },
+                    Guide {
+                        y: -0.5,
+                        label: "omega -0.5".into(),
+                        at_left: false,
+                    },
+                    Guide {
+                        y: 0.6,
+                        label: "propensity 0.6".into(),
+                        at_left: true,
+                    },
+                ],
+            ),
+            "Sigma is in the table: its scale grows with n.".to_string(),
+        ));
     }
 }
 
