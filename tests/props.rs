@@ -96,7 +96,7 @@ proptest! {
             })
             .collect();
         prop_assert_eq!(&edges, &r.edges);
-        g.csr.verify().map_err(TestCaseError::fail)?;
+        g.csr.verify().map_err(|v| TestCaseError::fail(v.to_string()))?;
         let i = &g.intake;
         prop_assert_eq!(i.edge_lines, r.lines);
         prop_assert_eq!(i.self_loops, r.loops);

@@ -357,9 +357,9 @@ fn verify(store: &Path) -> Result<(), Error> {
     let t = std::time::Instant::now();
     let g = plumb::store::file::open(store)?;
     let opened = t.elapsed().as_secs_f64();
-    g.csr.verify().map_err(|problem| Error::Store {
+    g.csr.verify().map_err(|v| Error::Store {
         path: store.to_path_buf(),
-        problem,
+        problem: v.to_string(),
     })?;
     println!(
         "{}: ok — {} nodes, {} edges; checksum and layout checked on open ({:.3} s), lists \

@@ -127,23 +127,22 @@ impl Csr {
     /// Check every invariant: offsets start at 0, never decrease and end at the target count;
     /// every list is strictly increasing, has no self-loop, and every edge appears in both
     /// directions. Returns the first violation found.
-    pub fn verify(&self) -> Result<(), String> {
+    pub fn verify(&self) -> Result<(), Violation> {
         use rayon::prelude::*;
         let o = self.offsets();
         let t = self.targets();
         let n = self.node_count();
         if o.first() != Some(&0) {
-            return Err("offsets do not start at 0".into());
+            return Err(Violation::OffsetsStart);
         }
         if o[n] != t.len() as u64 {
-            return Err(format!(
-                "last offset {} differs from target count {}",
-                o[n],
-                t.len()
-            ));
+            return Err(Violation::LastOffset {
+                last: o[n],
+                targets: t.len() as u64,
+            });
         }
         if let Some(u) = (0..n).into_par_iter().find_first(|&u| o[u] > o[u + 1]) {
-            return Err(format!("offsets decrease at node index {u}"));
+            return Err(Violation::OffsetsDecrease { node: u as u32 });
         }
         let bad = (0..n as u32).into_par_iter().find_first(|&u| {
             let l = self.neighbors(u);
@@ -153,11 +152,39 @@ impl Csr {
                 })
         });
         match bad {
-            Some(u) => Err(format!(
-                "neighbour list of node index {u} is unsorted, out of range, has a self-loop or \
-                 lacks its reverse edge"
-            )),
+            Some(u) => Err(Violation::BadList { node: u }),
             None => Ok(()),
         }
     }
+}
+
+/// The first broken invariant [`Csr::verify`] found.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, thiserror::Error)]
+pub enum Violation {
+    /// The first offset is not 0.
+    #[error("offsets do not start at 0")]
+    OffsetsStart,
+    /// The last offset is not the number of targets.
+    #[error("last offset {last} differs from target count {targets}")]
+    LastOffset {
+        /// The last offset.
+        last: u64,
+        /// Targets stored.
+        targets: u64,
+    },
+    /// Offsets decrease after this node.
+    #[error("offsets decrease at node index {node}")]
+    OffsetsDecrease {
+        /// The node index.
+        node: u32,
+    },
+    /// This node's list breaks an invariant.
+    #[error(
+        "neighbour list of node index {node} is unsorted, out of range, has a self-loop or lacks \
+         its reverse edge"
+    )]
+    BadList {
+        /// The node index.
+        node: u32,
+    },
 }
