@@ -34,6 +34,17 @@ pub fn lower_quantile(sorted: &[f64], q: f64) -> f64 {
     sorted[((q * sorted.len() as f64) as usize).min(sorted.len() - 1)]
 }
 
+/// The central `level` interval of the sorted draws `sorted` (percentile method), widened to
+/// contain `value`, so the reported figure always lies inside its interval.
+pub fn percentile_interval(sorted: &[f64], level: f64, value: f64) -> crate::figure::Interval {
+    let tail = (1.0 - level) / 2.0;
+    crate::figure::Interval {
+        low: lower_quantile(sorted, tail).min(value),
+        high: lower_quantile(sorted, 1.0 - tail).max(value),
+        level,
+    }
+}
+
 #[cfg(test)]
 mod tests {
     use super::*;

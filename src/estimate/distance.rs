@@ -15,7 +15,7 @@ use super::interval::z_for;
 use super::sample::mean_interval;
 use crate::exact::distances::{BatchBuffers, effective_diameter, sources_batch_each};
 use crate::figure::{Figure, Interval};
-use crate::numeric::{lower_quantile, mean_variance};
+use crate::numeric::{mean_variance, percentile_interval};
 use crate::store::csr::Csr;
 
 /// Bootstrap resamples for the effective diameter.
@@ -259,8 +259,6 @@ fn bootstrap_effective(
         .collect();
     let se = mean_variance(&reps).1.sqrt();
     reps.sort_by(f64::total_cmp);
-    let tail = (1.0 - level) / 2.0;
-    let at = |q: f64| lower_quantile(&reps, q);
     Figure::estimate(
         value,
         &format!(
@@ -269,11 +267,7 @@ fn bootstrap_effective(
         ),
         k as u64,
         se,
-        Interval {
-            low: at(tail).min(value),
-            high: at(1.0 - tail).max(value),
-            level,
-        },
+        percentile_interval(&reps, level, value),
     )
 }
 

@@ -19,7 +19,7 @@ use rand_chacha::ChaCha8Rng;
 use serde::{Deserialize, Serialize};
 
 use crate::figure::{Figure, Interval};
-use crate::numeric::{lower_quantile, mean_variance};
+use crate::numeric::{mean_variance, percentile_interval};
 
 /// Euler–Mascheroni constant.
 const EULER_GAMMA: f64 = 0.577_215_664_901_532_9;
@@ -299,8 +299,6 @@ fn propagate(
     }
     let se = mean_variance(&draws).1.sqrt();
     draws.sort_by(f64::total_cmp);
-    let q = |p: f64| lower_quantile(&draws, p);
-    let tail = (1.0 - level) / 2.0;
     Figure::estimate(
         value,
         &format!(
@@ -308,11 +306,7 @@ fn propagate(
         ),
         DRAWS as u64,
         se,
-        Interval {
-            low: q(tail).min(value),
-            high: q(1.0 - tail).max(value),
-            level,
-        },
+        percentile_interval(&draws, level, value),
     )
 }
 

@@ -6,7 +6,8 @@ use std::fmt::Write as _;
 
 use crate::monitor::drift::{FigureKey, Threshold, compare, figures_of};
 use crate::monitor::history::{Entry, History};
-use crate::output::svg::{Axis, Mark, Point, Series, chart, esc};
+use crate::output::html::point;
+use crate::output::svg::{Axis, Mark, Series, chart, esc};
 use crate::profile::report::Report;
 
 /// The trend page of a history: each figure over the snapshots with interval bars where
@@ -94,14 +95,7 @@ fn figure_chart(
     let mut flagged = Vec::new();
     for (i, (_, r)) in snaps.iter().enumerate() {
         if let Some((_, f)) = figures_of(r).into_iter().find(|(k, _)| *k == key) {
-            let p = Point {
-                x: i as f64 + 1.0,
-                y: f.value(),
-                interval: match (&f.method(), f.interval()) {
-                    (crate::figure::Method::Estimate { .. }, Some(iv)) => Some((iv.low, iv.high)),
-                    _ => None,
-                },
-            };
+            let p = point(i as f64 + 1.0, &f);
             if alerts[i].contains(&key) {
                 flagged.push(p);
             }

@@ -85,14 +85,12 @@ fn cells(f: &Figure, places: usize) -> (String, String, String) {
     (value, interval, how)
 }
 
-fn point(x: f64, f: &Figure) -> Point {
+/// A chart point for `f` at `x`, with an interval bar when `f` is an estimate.
+pub(crate) fn point(x: f64, f: &Figure) -> Point {
     Point {
         x,
         y: f.value(),
-        interval: match (&f.method(), f.interval()) {
-            (Method::Estimate { .. }, Some(iv)) => Some((iv.low, iv.high)),
-            _ => None,
-        },
+        interval: f.estimate_interval().map(|iv| (iv.low, iv.high)),
     }
 }
 
