@@ -23,7 +23,10 @@ fn estimated(g: &Graph, seed: u64, groups: Groups, margin: f64) -> Report {
     let opts = ProfileOptions {
         clustering: Choice::Estimate,
         distances: Choice::Estimate,
-        clustering_tolerance: margin,
+        clustering_margin: plumb::profile::Margin {
+            absolute: margin,
+            ..plumb::profile::DEFAULT_CLUSTERING_MARGIN
+        },
         groups,
         seed,
         ..ProfileOptions::default()

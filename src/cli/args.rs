@@ -276,6 +276,10 @@ pub(crate) struct PlanArgs {
     /// Half-width of the transitivity and average-clustering intervals when sampled.
     #[arg(long, value_name = "PLUS_MINUS", default_value = "0.002", value_parser = parse_fraction)]
     clustering_margin: f64,
+    /// Half-width of the same intervals relative to the figure (5% or 0.05); the narrower of the
+    /// two applies, so small figures stay readable. 0 keeps only the absolute margin.
+    #[arg(long, value_name = "FRACTION", default_value = "5%", value_parser = parse_fraction)]
+    clustering_relative: f64,
     /// Half-width of the mean-distance interval when estimated, relative to the mean
     /// (0.01 or 1%).
     #[arg(long, value_name = "FRACTION", default_value = "1%", value_parser = parse_fraction)]
@@ -391,7 +395,11 @@ impl PlanArgs {
             },
             distances,
             distance_estimator,
-            clustering_tolerance: self.clustering_margin,
+            clustering_margin: plumb::profile::Margin {
+                absolute: self.clustering_margin,
+                relative: self.clustering_relative,
+                ..defaults.clustering_margin
+            },
             distance_tolerance: self.distance_margin,
             max_sources: self.max_sources.max(1),
             ball: plumb::estimate::hyperball::BallOptions {

@@ -9,7 +9,7 @@ use rand::{RngExt, SeedableRng};
 use rand_chacha::ChaCha8Rng;
 use rayon::prelude::*;
 
-use super::interval::{hoeffding_samples, wilson};
+use super::interval::{hoeffding_samples, wilson, z_for};
 use crate::exact::clustering::{ClusteringStats, DegreeClustering};
 use crate::figure::{Figure, Interval};
 use crate::store::csr::Csr;
@@ -41,14 +41,107 @@ fn block_rng(seed: u64, b: u64) -> ChaCha8Rng {
 /// Count the successes of `samples` Bernoulli draws, in blocks with streams of their own, so the
 /// count does not depend on the thread count.
 fn count_successes(samples: u64, seed: u64, draw: impl Fn(&mut ChaCha8Rng) -> bool + Sync) -> u64 {
+    count_from_block(0, samples, seed, &draw)
+}
+
+/// As [`count_successes`], with the blocks numbered from `first` (a continuation's streams are
+/// apart from the pilot's).
+fn count_from_block(
+    first: u64,
+    samples: u64,
+    seed: u64,
+    draw: &(impl Fn(&mut ChaCha8Rng) -> bool + Sync),
+) -> u64 {
     (0..samples.div_ceil(BLOCK))
         .into_par_iter()
         .map(|b| {
-            let mut rng = block_rng(seed, b);
+            let mut rng = block_rng(seed, first + b);
             let take = BLOCK.min(samples - b * BLOCK);
             (0..take).filter(|_| draw(&mut rng)).count() as u64
         })
         .sum()
+}
+
+/// How wide a sampled clustering figure's interval may be: the narrower of an absolute
+/// half-width and one relative to the figure, so that a figure of 1e-5 is not reported as
+/// `0.0000 ± 0.002`. Sample sizes come from a pilot (Stein's two-stage idea: C. Stein, "A
+/// two-sample test for a linear hypothesis whose power is independent of the variance", Ann.
+/// Math. Statist. 16, 1945), capped by `max_samples` so a vanishing figure cannot ask for
+/// billions of draws; the interval reported is always the one the samples give.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct Margin {
+    /// Largest half-width, in the figure's units (0.002 by default for transitivity).
+    pub absolute: f64,
+    /// Largest half-width relative to the figure (0.05 = ±5%); 0 turns the relative rule off.
+    pub relative: f64,
+    /// Most samples one figure may draw.
+    pub max_samples: u64,
+}
+
+impl Margin {
+    /// Only an absolute half-width, with Hoeffding's sample size (no pilot needed).
+    pub fn absolute(half_width: f64) -> Margin {
+        Margin {
+            absolute: half_width,
+            relative: 0.0,
+            max_samples: u64::MAX,
+        }
+    }
+
+    /// The half-width wanted for a figure near `p`.
+    pub fn target(&self, p: f64) -> f64 {
+        if self.relative > 0.0 {
+            self.absolute.min(self.relative * p)
+        } else {
+            self.absolute
+        }
+    }
+
+    /// The pilot: Hoeffding's sample size for the absolute half-width (within the cap).
+    pub fn pilot(&self, level: f64) -> u64 {
+        hoeffding_samples(self.absolute, level).min(self.max_samples)
+    }
+
+    /// Samples to draw in all, given `closed` successes in a pilot of `pilot` draws: the pilot
+    /// alone when its Wilson interval already meets the target, else the normal-approximation
+    /// size n = z² p(1-p) / h² at the pilot's proportion (its upper Wilson bound when nothing
+    /// closed), within the cap.
+    pub fn samples_after_pilot(&self, closed: u64, pilot: u64, level: f64) -> u64 {
+        if pilot == 0 || self.relative <= 0.0 {
+            return pilot;
+        }
+        let iv = wilson(closed, pilot, level);
+        let p = closed as f64 / pilot as f64;
+        if (iv.high - iv.low) / 2.0 <= self.target(p) {
+            return pilot;
+        }
+        let plan = if closed == 0 { iv.high } else { p };
+        let h = self.target(plan);
+        let z = z_for(level);
+        let n = (z * z * plan * (1.0 - plan) / (h * h)).ceil();
+        if n.is_finite() {
+            (n as u64).clamp(pilot, self.max_samples.max(pilot))
+        } else {
+            self.max_samples.max(pilot)
+        }
+    }
+}
+
+/// Successes and draws of a proportion sampled to `margin`: a pilot, then as many more draws as
+/// the pilot says the margin needs.
+fn sample_to(
+    margin: &Margin,
+    level: f64,
+    seed: u64,
+    draw: impl Fn(&mut ChaCha8Rng) -> bool + Sync,
+) -> (u64, u64) {
+    let pilot = margin.pilot(level);
+    let mut closed = count_from_block(0, pilot, seed, &draw);
+    let total = margin.samples_after_pilot(closed, pilot, level);
+    if total > pilot {
+        closed += count_from_block(pilot.div_ceil(BLOCK), total - pilot, seed, &draw);
+    }
+    (closed, total)
 }
 
 /// A sampled proportion as a figure (Wilson interval), and the same figure scaled by `scale`.
@@ -74,36 +167,101 @@ fn proportion(closed: u64, samples: u64, level: f64, name: &str, scale: f64) -> 
     (Figure::estimate(p, name, samples, se, iv), scaled)
 }
 
-/// Estimate transitivity from `samples` wedges, with a Wilson interval at `level`.
-pub fn estimate(g: &Csr, samples: u64, level: f64, seed: u64) -> WedgeEstimate {
-    let n = g.node_count();
-    // Cumulative wedge counts; u128 would be exact but u64 holds sum C(d,2) for any graph whose
-    // wedge total fits, checked below.
-    let mut cum = Vec::with_capacity(n);
-    let mut acc: u128 = 0;
-    for v in 0..n as u32 {
-        acc += crate::exact::clustering::wedges_at(g.degree(v));
-        cum.push(acc);
+/// How many draws: a fixed count, or as many as a margin needs (see [`Margin`]).
+#[derive(Debug, Clone, Copy)]
+enum Draws<'a> {
+    Fixed(u64),
+    To(&'a Margin),
+}
+
+fn run_draws(
+    draws: Draws,
+    level: f64,
+    seed: u64,
+    draw: impl Fn(&mut ChaCha8Rng) -> bool + Sync,
+) -> (u64, u64) {
+    match draws {
+        Draws::Fixed(k) => (count_successes(k, seed, draw), k),
+        Draws::To(m) => sample_to(m, level, seed, draw),
     }
-    let wedges = acc;
-    let closed = if wedges == 0 {
-        0
+}
+
+/// Uniform wedges: cumulative wedge counts pick a centre in proportion to its wedges.
+struct WedgeSampler<'g> {
+    g: &'g Csr,
+    cum: Vec<u128>,
+    wedges: u128,
+}
+
+impl<'g> WedgeSampler<'g> {
+    fn new(g: &'g Csr) -> Self {
+        let mut cum = Vec::with_capacity(g.node_count());
+        let mut acc: u128 = 0;
+        for v in 0..g.node_count() as u32 {
+            acc += crate::exact::clustering::wedges_at(g.degree(v));
+            cum.push(acc);
+        }
+        WedgeSampler {
+            g,
+            cum,
+            wedges: acc,
+        }
+    }
+
+    fn draw(&self, rng: &mut ChaCha8Rng) -> bool {
+        let x = random_below(rng, self.wedges);
+        let v = self.cum.partition_point(|&w| w <= x);
+        closes(self.g, v as u32, rng)
+    }
+}
+
+const WEDGE_NAME: &str = "wedge sampling (Seshadhri, Pinar & Kolda 2013), Wilson interval";
+
+fn estimate_with(g: &Csr, draws: Draws, level: f64, seed: u64) -> WedgeEstimate {
+    let s = WedgeSampler::new(g);
+    let (closed, samples) = if s.wedges == 0 {
+        (0, draws_without_sampling(draws, level))
     } else {
-        count_successes(samples, seed, |rng| {
-            // A uniform wedge index picks the centre in proportion to its wedges.
-            let x = random_below(rng, wedges);
-            let v = cum.partition_point(|&w| w <= x);
-            closes(g, v as u32, rng)
-        })
+        run_draws(draws, level, seed, |rng| s.draw(rng))
     };
-    const NAME: &str = "wedge sampling (Seshadhri, Pinar & Kolda 2013), Wilson interval";
-    let (transitivity, triangles) = proportion(closed, samples, level, NAME, wedges as f64 / 3.0);
+    let (transitivity, triangles) =
+        proportion(closed, samples, level, WEDGE_NAME, s.wedges as f64 / 3.0);
     WedgeEstimate {
         transitivity,
         triangles,
         samples,
         closed,
     }
+}
+
+/// The sample size reported when there is nothing to draw (no wedges at all).
+fn draws_without_sampling(draws: Draws, level: f64) -> u64 {
+    match draws {
+        Draws::Fixed(k) => k,
+        Draws::To(m) => m.pilot(level),
+    }
+}
+
+/// Estimate transitivity from `samples` wedges, with a Wilson interval at `level`.
+pub fn estimate(g: &Csr, samples: u64, level: f64, seed: u64) -> WedgeEstimate {
+    estimate_with(g, Draws::Fixed(samples), level, seed)
+}
+
+/// Estimate transitivity to `margin` at `level`: a pilot sizes the sample (see [`Margin`]).
+pub fn estimate_to(g: &Csr, margin: &Margin, level: f64, seed: u64) -> WedgeEstimate {
+    estimate_with(g, Draws::To(margin), level, seed)
+}
+
+/// Wedge draws that transitivity to `margin` would take on `g`: its pilot is drawn (the same
+/// draws [`estimate_to`] starts with) and the rest predicted from it.
+pub fn planned_draws(g: &Csr, margin: &Margin, level: f64, seed: u64) -> u64 {
+    let s = WedgeSampler::new(g);
+    if s.wedges == 0 {
+        return 0;
+    }
+    let pilot = margin.pilot(level);
+    let closed = count_successes(pilot, seed, |rng| s.draw(rng));
+    margin.samples_after_pilot(closed, pilot, level)
 }
 
 /// Both averages of local clustering by node-then-wedge sampling: a uniform node of degree >= 2,
@@ -121,23 +279,16 @@ pub struct AverageClusteringEstimate {
     pub average_deg2: Figure,
 }
 
-/// Average local clustering by uniform node sampling (then a wedge per node), with
-/// finite-population corrected intervals (Seshadhri, Pinar & Kolda, SDM 2013).
-pub fn average_clustering(
-    g: &Csr,
-    samples: u64,
-    level: f64,
-    seed: u64,
-) -> AverageClusteringEstimate {
+fn average_with(g: &Csr, draws: Draws, level: f64, seed: u64) -> AverageClusteringEstimate {
     const NAME: &str =
         "uniform node then uniform wedge (Seshadhri, Pinar & Kolda 2014), Wilson interval";
     let n = g.node_count();
     let deg2: Vec<u32> = (0..n as u32).filter(|&v| g.degree(v) >= 2).collect();
     // Streams of their own, apart from the transitivity estimator's.
-    let closed = if deg2.is_empty() {
-        0
+    let (closed, samples) = if deg2.is_empty() {
+        (0, draws_without_sampling(draws, level))
     } else {
-        count_successes(samples, seed ^ 0xC1u64.rotate_left(56), |rng| {
+        run_draws(draws, level, seed ^ 0xC1u64.rotate_left(56), |rng| {
             let v = deg2[rng.random_range(0..deg2.len())];
             closes(g, v, rng)
         })
@@ -154,15 +305,28 @@ pub fn average_clustering(
     }
 }
 
-/// C(k), the average local clustering of the nodes in each degree bin `[2,3]`, `[4,7]`, `[8,15]`, …
-/// (the exact profile's bins), each estimated by uniform node then uniform wedge within the bin,
-/// with its own Wilson interval.
-pub fn clustering_by_degree(
+/// Average local clustering by uniform node sampling (then a wedge per node), from `samples`
+/// draws, with Wilson intervals (Seshadhri, Pinar & Kolda, SDM 2013).
+pub fn average_clustering(
     g: &Csr,
-    samples_per_bin: u64,
+    samples: u64,
     level: f64,
     seed: u64,
-) -> Vec<DegreeClustering> {
+) -> AverageClusteringEstimate {
+    average_with(g, Draws::Fixed(samples), level, seed)
+}
+
+/// As [`average_clustering`], sampled to `margin` (see [`Margin`]).
+pub fn average_clustering_to(
+    g: &Csr,
+    margin: &Margin,
+    level: f64,
+    seed: u64,
+) -> AverageClusteringEstimate {
+    average_with(g, Draws::To(margin), level, seed)
+}
+
+fn by_degree_with(g: &Csr, draws: Draws, level: f64, seed: u64) -> Vec<DegreeClustering> {
     const NAME: &str = "uniform node in the bin then uniform wedge (Seshadhri, Pinar & Kolda 2014), Wilson interval";
     let mut bins: Vec<Vec<u32>> = Vec::new();
     for v in 0..g.node_count() as u32 {
@@ -185,12 +349,13 @@ pub fn clustering_by_degree(
         .map(|(b, members)| {
             let low = 2u32 << b;
             let high = (low.saturating_mul(2) - 1).min(max);
-            let closed = count_successes(
-                samples_per_bin,
+            let (closed, samples) = run_draws(
+                draws,
+                level,
                 seed ^ (0xB1u64 + b as u64).rotate_left(48),
                 |rng| closes(g, members[rng.random_range(0..members.len())], rng),
             );
-            let (mean, _) = proportion(closed, samples_per_bin, level, NAME, 1.0);
+            let (mean, _) = proportion(closed, samples, level, NAME, 1.0);
             DegreeClustering {
                 low,
                 high,
@@ -201,25 +366,46 @@ pub fn clustering_by_degree(
         .collect()
 }
 
-/// Every clustering figure estimated: transitivity and triangles, both averages to ±`tolerance`
-/// at `level` (Hoeffding sample sizes), and C(k) to ±`bin_tolerance` per bin.
+/// C(k), the average local clustering of the nodes in each degree bin `[2,3]`, `[4,7]`, `[8,15]`, …
+/// (the exact profile's bins), each estimated from `samples_per_bin` draws of uniform node then
+/// uniform wedge within the bin, with its own Wilson interval (Seshadhri, Pinar & Kolda 2014).
+pub fn clustering_by_degree(
+    g: &Csr,
+    samples_per_bin: u64,
+    level: f64,
+    seed: u64,
+) -> Vec<DegreeClustering> {
+    by_degree_with(g, Draws::Fixed(samples_per_bin), level, seed)
+}
+
+/// As [`clustering_by_degree`], each bin sampled to `margin` (see [`Margin`]).
+pub fn clustering_by_degree_to(
+    g: &Csr,
+    margin: &Margin,
+    level: f64,
+    seed: u64,
+) -> Vec<DegreeClustering> {
+    by_degree_with(g, Draws::To(margin), level, seed)
+}
+
+/// Every clustering figure estimated: transitivity and triangles and both averages to `margin`,
+/// C(k) to `bin_margin` per bin, at `level` (see [`Margin`]).
 pub fn sampled_stats(
     g: &Csr,
-    tolerance: f64,
-    bin_tolerance: f64,
+    margin: &Margin,
+    bin_margin: &Margin,
     level: f64,
     seed: u64,
 ) -> ClusteringStats {
-    let k = hoeffding_samples(tolerance, level);
-    let w = estimate(g, k, level, seed);
-    let a = average_clustering(g, k, level, seed);
+    let w = estimate_to(g, margin, level, seed);
+    let a = average_clustering_to(g, margin, level, seed);
     ClusteringStats {
         triangles: w.triangles,
         wedges: crate::exact::clustering::wedge_total(g),
         transitivity: w.transitivity,
         average_zeros: a.average_zeros,
         average_deg2: a.average_deg2,
-        by_degree: clustering_by_degree(g, hoeffding_samples(bin_tolerance, level), level, seed),
+        by_degree: clustering_by_degree_to(g, bin_margin, level, seed),
     }
 }
 

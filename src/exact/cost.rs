@@ -23,7 +23,7 @@ pub const REFERENCE_RATES: Rates = Rates {
     triangle: 4.0e8,
     bfs_words: 2.2e8,
     ball_bytes: 1.3e9,
-    wedges: 1.0e6,
+    wedges: 2.0e6,
 };
 
 /// Work of forward triangle listing: each node's list is merged against neighbours whose

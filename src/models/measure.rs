@@ -18,7 +18,7 @@ pub struct Measure {
     /// Seconds an exact method may be predicted to take.
     pub exact_seconds: f64,
     /// Half-width of the clustering intervals when sampled.
-    pub clustering_tolerance: f64,
+    pub clustering_margin: wedges::Margin,
     /// Half-width of the mean-distance interval when estimated, relative to the mean.
     pub distance_tolerance: f64,
     /// Confidence level of the estimates.
@@ -38,7 +38,13 @@ pub fn measure_reference(g: &Csr, opts: &Measure, seed: u64) -> (f64, f64, f64) 
         let s = clustering::stats(g, &tri, &local);
         (s.transitivity.value(), s.average_zeros.value())
     } else {
-        let s = wedges::sampled_stats(g, opts.clustering_tolerance, 1.0, opts.level, seed);
+        let s = wedges::sampled_stats(
+            g,
+            &opts.clustering_margin,
+            &wedges::Margin::absolute(1.0),
+            opts.level,
+            seed,
+        );
         (s.transitivity.value(), s.average_zeros.value())
     };
     let comps = components::components(g);

@@ -56,15 +56,24 @@ fn number(v: f64, places: usize) -> String {
 
 /// A figure's value and interval as table cells: value, interval, method.
 fn cells(f: &Figure, places: usize) -> (String, String, String) {
-    let value = number(f.value(), places);
+    let mut value = number(f.value(), places);
     let (interval, how) = match (&f.method(), &f.interval()) {
         (Method::Estimate { estimator }, Some(iv)) => (
-            format!(
-                "{}–{} ({:.0}%)",
-                number(iv.low, places),
-                number(iv.high, places),
-                100.0 * iv.level
-            ),
+            {
+                // As many digits as the interval needs to show, however small the figure.
+                let p = crate::output::number::precision(
+                    f.value(),
+                    ((iv.high - iv.low) / 2.0).abs(),
+                    places,
+                );
+                value = p.show(f.value());
+                format!(
+                    "{}–{} ({:.0}%)",
+                    p.show(iv.low),
+                    p.show(iv.high),
+                    100.0 * iv.level
+                )
+            },
             format!(
                 "estimate: {estimator}{}",
                 f.sample_size()

@@ -382,8 +382,16 @@ impl Plot<'_> {
                 esc(&x.label),
                 tick_text(p.x, false),
                 match p.interval {
-                    Some((lo, hi)) => format!("{:.4} (interval {lo:.4} to {hi:.4})", p.y),
-                    None => format!("{:.4}", p.y),
+                    Some((lo, hi)) => {
+                        let pr = crate::output::number::precision(p.y, (hi - lo) / 2.0, 4);
+                        format!(
+                            "{} (interval {} to {})",
+                            pr.show(p.y),
+                            pr.show(lo),
+                            pr.show(hi)
+                        )
+                    }
+                    None => crate::output::number::decimal(p.y, 4),
                 }
             );
         }

@@ -4,8 +4,8 @@
 
 use std::fmt::Write as _;
 
-use crate::output::number::decimal;
 pub use crate::output::number::{bytes, count};
+use crate::output::number::{decimal, precision};
 
 use crate::figure::{Figure, Method};
 use crate::profile::{Distances, Profile};
@@ -243,13 +243,14 @@ fn fig(f: &Figure, places: usize) -> String {
     match (&f.method(), &f.interval()) {
         (Method::Estimate { .. }, Some(iv)) => {
             let half = ((iv.high - iv.low) / 2.0).abs();
+            let p = precision(f.value(), half, places);
             format!(
                 "{} ± {} ({:.0}%: {}–{})",
-                fixed(f.value(), places),
-                fixed(half, places),
+                p.show(f.value()),
+                p.show_half(half),
                 100.0 * iv.level,
-                fixed(iv.low, places),
-                fixed(iv.high, places)
+                p.show(iv.low),
+                p.show(iv.high)
             )
         }
         (Method::Bounds { .. }, Some(iv)) => format!(
@@ -394,14 +395,18 @@ fn clustering_text(out: &mut String, k: &crate::exact::clustering::ClusteringSta
         .by_degree
         .iter()
         .map(|b| match &b.mean.interval() {
-            Some(iv) if !b.mean.is_exact() => format!(
-                "{}–{}: {:.3}±{:.3}",
-                b.low,
-                b.high,
-                b.mean.value(),
-                (iv.high - iv.low) / 2.0
-            ),
-            _ => format!("{}–{}: {:.3}", b.low, b.high, b.mean.value()),
+            Some(iv) if !b.mean.is_exact() => {
+                let half = (iv.high - iv.low) / 2.0;
+                let p = precision(b.mean.value(), half, 3);
+                format!(
+                    "{}–{}: {}±{}",
+                    b.low,
+                    b.high,
+                    p.show(b.mean.value()),
+                    p.show_half(half)
+                )
+            }
+            _ => format!("{}–{}: {}", b.low, b.high, fixed(b.mean.value(), 3)),
         })
         .collect();
     row(out, "C(k)", ck.join(" · "));
@@ -600,8 +605,12 @@ pub fn sweep_text(s: &crate::models::sweep::Sweep) -> String {
         "p", "C(p)/C(0)", "L(p)/L(0)", "C(p)"
     );
     let pm = |f: &Figure| match f.interval() {
-        Some(iv) => format!("{:.4} ± {:.4}", f.value(), (iv.high - iv.low) / 2.0),
-        None => format!("{:.4}", f.value()),
+        Some(iv) => {
+            let half = (iv.high - iv.low) / 2.0;
+            let p = precision(f.value(), half, 4);
+            format!("{} ± {}", p.show(f.value()), p.show_half(half))
+        }
+        None => decimal(f.value(), 4),
     };
     for r in &s.rows {
         let _ = writeln!(

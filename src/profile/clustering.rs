@@ -4,12 +4,13 @@
 //! sampling (Seshadhri, Pinar & Kolda, SDM 2013) to the requested margins.
 
 use crate::estimate::wedges;
+use crate::estimate::wedges::Margin;
 use crate::exact::clustering::{self, ClusteringStats};
 use crate::exact::cost::{self, seconds};
 use crate::exact::triangles;
 use crate::profile::ProfileOptions;
 use crate::profile::clock::Clock;
-use crate::profile::plan::{Choice, Decision, Group, decide, why};
+use crate::profile::plan::{Choice, Decision, Group, decide, secs, why};
 use crate::store::csr::Csr;
 use crate::store::intake::StageName;
 
@@ -22,9 +23,27 @@ pub(crate) struct ClusteringOutcome {
 }
 
 /// The clustering group's one entry point: decides exact or sampled and returns the figures.
-pub(crate) fn run(csr: &Csr, opts: &ProfileOptions, clock: &mut Clock) -> ClusteringOutcome {
+/// `read_seconds` is what reading the input took: an exact count predicted to cost no more is
+/// worth its certainty even over the budget.
+pub(crate) fn run(
+    csr: &Csr,
+    opts: &ProfileOptions,
+    read_seconds: f64,
+    clock: &mut Clock,
+) -> ClusteringOutcome {
     let predicted = seconds(cost::triangle_work(csr), opts.rates.triangle, opts.threads);
-    let exact = decide(opts.clustering, predicted, opts.exact_seconds);
+    let allowance = opts.exact_seconds.max(read_seconds);
+    let mut sampling = None;
+    let exact = match opts.clustering {
+        Choice::Auto if predicted > allowance => {
+            // Small figures need large samples: the pilot tells how large, and exact wins
+            // whenever it is predicted no dearer.
+            let s = sampling_seconds(csr, opts);
+            sampling = Some(s);
+            predicted <= s
+        }
+        choice => decide(choice, predicted, allowance),
+    };
     let (stats, per_node) = if exact {
         clock.start(StageName::Triangles);
         let tri = triangles::count(csr);
@@ -36,8 +55,8 @@ pub(crate) fn run(csr: &Csr, opts: &ProfileOptions, clock: &mut Clock) -> Cluste
         clock.start(StageName::SampledClustering);
         let stats = wedges::sampled_stats(
             csr,
-            opts.clustering_tolerance,
-            opts.bin_tolerance,
+            &opts.clustering_margin,
+            &opts.bin_margin,
             opts.level,
             opts.seed,
         );
@@ -48,11 +67,39 @@ pub(crate) fn run(csr: &Csr, opts: &ProfileOptions, clock: &mut Clock) -> Cluste
         "exact: forward triangle listing".into()
     } else {
         format!(
-            "wedge sampling to ±{} (C(k) bins to ±{}) at {}%",
-            opts.clustering_tolerance,
-            opts.bin_tolerance,
+            "wedge sampling to {} (C(k) bins to {}) at {}%",
+            margin_text(&opts.clustering_margin),
+            margin_text(&opts.bin_margin),
             100.0 * opts.level
         )
+    };
+    let reason = match (opts.clustering, exact, sampling) {
+        (Choice::Auto, true, Some(s)) => format!(
+            "exact triangle listing predicted {}, over the {} budget but no dearer than the {} \
+             sampling to the margins would take",
+            secs(predicted),
+            secs(allowance),
+            secs(s)
+        ),
+        (Choice::Auto, false, Some(s)) => format!(
+            "exact triangle listing predicted {}, over the {} budget; sampling to the margins \
+             predicted {}",
+            secs(predicted),
+            secs(allowance),
+            secs(s)
+        ),
+        (Choice::Auto, true, None) if read_seconds > opts.exact_seconds => format!(
+            "exact triangle listing predicted {}, within the {} reading the input took",
+            secs(predicted),
+            secs(read_seconds)
+        ),
+        _ => why(
+            opts.clustering,
+            exact,
+            "triangle listing",
+            predicted,
+            opts.exact_seconds,
+        ),
     };
     ClusteringOutcome {
         stats,
@@ -61,14 +108,35 @@ pub(crate) fn run(csr: &Csr, opts: &ProfileOptions, clock: &mut Clock) -> Cluste
             group: Group::Clustering,
             method,
             exact_seconds: predicted,
-            budget_seconds: (opts.clustering == Choice::Auto).then_some(opts.exact_seconds),
-            reason: why(
-                opts.clustering,
-                exact,
-                "triangle listing",
-                predicted,
-                opts.exact_seconds,
-            ),
+            budget_seconds: (opts.clustering == Choice::Auto).then_some(allowance),
+            reason,
         },
     }
+}
+
+/// "±0.002 or ±5% of the value, whichever is narrower", or just the absolute half-width.
+pub(crate) fn margin_text(m: &Margin) -> String {
+    if m.relative > 0.0 {
+        format!(
+            "±{} or ±{}% of the value, whichever is narrower",
+            m.absolute,
+            100.0 * m.relative
+        )
+    } else {
+        format!("±{}", m.absolute)
+    }
+}
+
+/// Predicted seconds of the sampled figures: transitivity's draws from its pilot, as many again
+/// for the averages, and each C(k) bin's pilot.
+fn sampling_seconds(csr: &Csr, opts: &ProfileOptions) -> f64 {
+    let m = &opts.clustering_margin;
+    let draws = wedges::planned_draws(csr, m, opts.level, opts.seed);
+    let max_degree = (0..csr.node_count() as u32)
+        .map(|v| csr.degree(v))
+        .max()
+        .unwrap_or(0);
+    let bins = 32 - max_degree.leading_zeros() as u64;
+    let work = 2 * draws + bins * opts.bin_margin.pilot(opts.level);
+    seconds(work as f64, opts.rates.wedges, opts.threads)
 }

@@ -40,6 +40,10 @@ pub struct Settings {
     pub diameter_seconds: f64,
     /// Half-width of the clustering intervals when sampled (absolute).
     pub clustering_margin: f64,
+    /// Half-width of the clustering intervals when sampled, relative to the figure; the narrower
+    /// of the two applies (0 = absolute only; absent in reports before plumb 0.1 wrote it).
+    #[serde(default)]
+    pub clustering_relative_margin: f64,
     /// Half-width of the mean-distance interval when estimated, relative to the mean.
     pub distance_margin: f64,
     /// Sampled reference graphs of each kind requested (`null` = by budget).
@@ -132,7 +136,8 @@ impl Report {
                 level: opts.level,
                 exact_seconds: opts.exact_seconds,
                 diameter_seconds: opts.diameter_seconds,
-                clustering_margin: opts.clustering_tolerance,
+                clustering_margin: opts.clustering_margin.absolute,
+                clustering_relative_margin: opts.clustering_margin.relative,
                 distance_margin: opts.distance_tolerance,
                 reference_graphs: opts.reference_graphs,
                 groups: opts.groups,

@@ -87,8 +87,8 @@ fn observed_on_giant(
         _ => {
             let s = wedges::sampled_stats(
                 sub,
-                opts.clustering_tolerance,
-                opts.bin_tolerance,
+                &opts.clustering_margin,
+                &opts.bin_margin,
                 opts.level,
                 opts.seed,
             );
