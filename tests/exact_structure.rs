@@ -223,6 +223,7 @@ fn identical_results_on_any_thread_count() {
         p.stages.clear();
         for d in &mut p.plan {
             d.exact_seconds = 0.0;
+            d.predicted_seconds = None;
             d.reason.clear();
         }
         (

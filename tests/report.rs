@@ -118,6 +118,7 @@ fn karate_golden_report() {
     p.intake.stages.clear();
     for d in &mut p.plan {
         d.exact_seconds = 0.0;
+        d.predicted_seconds = None;
         d.reason.clear();
     }
     let r = Report::new(p, None, &opts).unwrap();

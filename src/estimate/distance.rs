@@ -111,6 +111,11 @@ pub fn pilot(g: &Csr, level: f64, max_sources: usize, seed: u64) -> Pilot {
 }
 
 impl Pilot {
+    /// Sources the pilot searched from.
+    pub fn sources_done(&self) -> usize {
+        self.per.len()
+    }
+
     /// Sources the whole estimate will use for ±`relative` (whole batches of 64, at least the
     /// pilot's, at most the order's).
     pub fn sources_needed(&self, relative: f64, level: f64) -> usize {

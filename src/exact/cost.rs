@@ -16,6 +16,13 @@ pub struct Rates {
     pub ball_bytes: f64,
     /// Wedge samples drawn and tested.
     pub wedges: f64,
+    /// Forward triangle listing: seconds per step of [`triangle_steps`] while the oriented
+    /// graph fits in cache.
+    pub triangle_step_seconds: f64,
+    /// Further seconds per step when it does not (scaled by the share that misses).
+    pub triangle_miss_seconds: f64,
+    /// The cache the interpolation assumes, in bytes.
+    pub cache_bytes: f64,
 }
 
 /// Measured with `cargo bench --bench estimate` on the reference machine (2-core virtual Xeon).
@@ -24,7 +31,22 @@ pub const REFERENCE_RATES: Rates = Rates {
     bfs_words: 2.2e8,
     ball_bytes: 1.3e9,
     wedges: 2.0e6,
+    // Fitted to forward listing on Watts–Strogatz, G(n,m) and attachment graphs of 5M and 50M
+    // edges (`cargo bench --bench planner`): about 10 ns a step at 5M edges, 22 ns at 50M.
+    triangle_step_seconds: 3.4e-9,
+    triangle_miss_seconds: 2.0e-8,
+    cache_bytes: 16.0 * 1024.0 * 1024.0,
 };
+
+/// Predicted seconds of forward triangle listing on `g`: its exact steps ([`triangle_steps`])
+/// at a per-step cost that grows with the share of the oriented graph and the per-thread marks
+/// (4 bytes per entry and per node) that cannot stay in cache.
+pub fn triangle_seconds(g: &Csr, rates: &Rates, threads: usize) -> f64 {
+    let working_set = 4.0 * (g.edge_count() as f64 + g.node_count() as f64);
+    let missing = (1.0 - rates.cache_bytes / working_set.max(1.0)).max(0.0);
+    let per_step = rates.triangle_step_seconds + missing * rates.triangle_miss_seconds;
+    triangle_steps(g) * per_step / threads.max(1) as f64
+}
 
 /// Work of forward triangle listing: each node's list is merged against neighbours whose
 /// oriented lists hold at most sqrt(2m) entries, so sum_v d_v min(d_v, sqrt(2m)) bounds it
@@ -37,6 +59,28 @@ pub fn triangle_work(g: &Csr) -> f64 {
             d * d.min(cap)
         })
         .sum()
+}
+
+/// The steps forward triangle listing will actually take on `g`: orienting every edge from lower
+/// to higher (degree, index) rank, each oriented edge u→v scans N⁺(v), so the listing costs
+/// Σ_v d⁻(v)·d⁺(v) probes plus one pass to orient (Schank & Wagner, WEA 2005; Latapy, Theor.
+/// Comput. Sci. 407, 2008). Unlike [`triangle_work`], a bound that overstates heavy-tailed
+/// graphs several times, this is exact, at the price of one pass over the adjacency.
+pub fn triangle_steps(g: &Csr) -> f64 {
+    use rayon::prelude::*;
+    let steps: u64 = (0..g.node_count() as u32)
+        .into_par_iter()
+        .map(|v| {
+            let dv = g.degree(v);
+            let plus = g
+                .neighbors(v)
+                .iter()
+                .filter(|&&w| (g.degree(w), w) > (dv, v))
+                .count() as u64;
+            plus * (dv as u64 - plus) + dv as u64
+        })
+        .sum();
+    steps as f64
 }
 
 /// Words visited by bit-parallel BFS from `sources` sources over `levels` levels of a connected

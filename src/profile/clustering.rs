@@ -31,7 +31,7 @@ pub(crate) fn run(
     read_seconds: f64,
     clock: &mut Clock,
 ) -> ClusteringOutcome {
-    let predicted = seconds(cost::triangle_work(csr), opts.rates.triangle, opts.threads);
+    let predicted = cost::triangle_seconds(csr, &opts.rates, opts.threads);
     let allowance = opts.exact_seconds.max(read_seconds);
     let mut sampling = None;
     let exact = match opts.clustering {
@@ -108,6 +108,7 @@ pub(crate) fn run(
             group: Group::Clustering,
             method,
             exact_seconds: predicted,
+            predicted_seconds: if exact { Some(predicted) } else { sampling },
             budget_seconds: (opts.clustering == Choice::Auto).then_some(allowance),
             reason,
         },

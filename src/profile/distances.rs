@@ -121,6 +121,7 @@ pub(crate) fn run(
             group: Group::Distances,
             method: "exact: all-pairs bit-parallel BFS".into(),
             exact_seconds: ap_secs,
+            predicted_seconds: Some(ap_secs),
             budget_seconds: (opts.distances == Choice::Auto).then_some(opts.exact_seconds),
             reason: why(
                 opts.distances,
@@ -234,10 +235,23 @@ fn estimate_distances(
         DistanceEstimator::Sources => false,
         DistanceEstimator::Cheaper => {
             clock.start(StageName::SampledDistances);
+            let started = std::time::Instant::now();
             let p = sampled::pilot(sub, opts.level, opts.max_sources, opts.seed);
+            // The pilot is the probe: its own time, scaled by the sources still to come, predicts
+            // this machine and graph better than any constant rate (the levels each batch walks
+            // vary with the sources drawn).
+            let pilot_time = started.elapsed().as_secs_f64();
             let k = p.sources_needed(opts.distance_tolerance, opts.level) as u64;
-            let work = bfs_work(k, sn, sm, giant.levels);
-            let src_secs = seconds(work, opts.rates.bfs_words, opts.threads);
+            let done = p.sources_done() as u64;
+            let src_secs = if pilot_time > 0.0 && done > 0 {
+                pilot_time * k.div_ceil(64) as f64 / done.div_ceil(64) as f64
+            } else {
+                seconds(
+                    bfs_work(k, sn, sm, giant.levels),
+                    opts.rates.bfs_words,
+                    opts.threads,
+                )
+            };
             pilot = Some((p, src_secs));
             ball_secs < src_secs
         }
@@ -261,6 +275,7 @@ fn estimate_distances(
             secs(rival_secs)
         );
     }
+    let pilot_secs = pilot.as_ref().map(|(_, s)| *s);
     let ball = if use_ball {
         by_ball(sub, opts, clock)
     } else {
@@ -291,6 +306,11 @@ fn estimate_distances(
         group: Group::Distances,
         method: e.method,
         exact_seconds: ap_secs,
+        predicted_seconds: match (&pilot_secs, use_ball) {
+            (_, true) => Some(ball_secs),
+            (Some(s), false) => Some(*s),
+            (None, false) => None,
+        },
         budget_seconds: (opts.distances == Choice::Auto).then_some(opts.exact_seconds),
         reason,
     };

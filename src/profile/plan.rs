@@ -42,6 +42,10 @@ pub struct Decision {
     pub method: String,
     /// Predicted seconds of the exact method on this machine.
     pub exact_seconds: f64,
+    /// Predicted seconds of the method that ran, when the planner predicted it (the stage's
+    /// measured time sits beside it in `stages`).
+    #[serde(default)]
+    pub predicted_seconds: Option<f64>,
     /// The time allowed for exact methods (`None` when the user chose the method).
     pub budget_seconds: Option<f64>,
     /// One sentence for the report.

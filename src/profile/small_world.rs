@@ -133,6 +133,7 @@ fn compare(
             opts.threads,
         )
         + m as f64 * (1.0 + opts.swaps_per_edge) / 5e6;
+    let reference_secs = |r: usize| 2.0 * r as f64 * per_reference;
     let (r, reason) = match opts.reference_graphs {
         Some(r) => (r, "chosen by the user".to_string()),
         None => {
@@ -203,6 +204,7 @@ fn compare(
             "analytic references".into()
         },
         exact_seconds: 0.0,
+        predicted_seconds: (r > 0).then(|| reference_secs(r)),
         budget_seconds: opts
             .reference_graphs
             .is_none()
