@@ -18,6 +18,26 @@ pub struct Source<'a> {
     /// Target piece size in bytes.
     pub piece: usize,
     pub max_line: usize,
+    /// The map behind `data`, when it is one: pieces done with are dropped from the resident
+    /// set (the file stays in the page cache), so reading a large file does not hold it all.
+    pub map: Option<&'a memmap2::Mmap>,
+}
+
+/// Drop the whole pages of `data[a..b]` from this process's resident set. Safe for a read-only
+/// file map: a later read faults the same bytes back in from the file.
+fn release(map: Option<&memmap2::Mmap>, a: usize, b: usize) {
+    const PAGE: usize = 4096;
+    let Some(map) = map else { return };
+    let (start, end) = (a.next_multiple_of(PAGE), b / PAGE * PAGE);
+    if end > start {
+        // SAFETY: the map is private and read-only; MADV_DONTNEED on it discards only clean
+        // page-cache views, which are refetched unchanged from the file if touched again. A
+        // failure only means the pages stay resident.
+        #[cfg(unix)]
+        let _ = unsafe {
+            map.unchecked_advise_range(memmap2::UncheckedAdvice::DontNeed, start, end - start)
+        };
+    }
 }
 
 /// Split plain text into pieces of about `target` bytes that end at a newline.
@@ -70,6 +90,7 @@ pub fn run<W: Send>(
                     if !work(&mut st, i, &src.data[a..b], a as u64) {
                         stop(i);
                     }
+                    release(src.map, a, b);
                     progress.advance((b - a) as u64);
                 }
                 st
@@ -94,9 +115,15 @@ pub fn run<W: Send>(
             std::thread::scope(|s| {
                 let decoder = s.spawn(|| {
                     let tx = tx;
-                    source::decode_chunks(src.data, c, src.piece, src.max_line, &mut |chunk| {
-                        !stopped_before(chunk.index) && tx.send(chunk).is_ok()
-                    })
+                    let consumed = |a: usize, b: usize| release(src.map, a, b);
+                    source::decode_chunks(
+                        src.data,
+                        c,
+                        src.piece,
+                        src.max_line,
+                        &consumed,
+                        &mut |chunk| !stopped_before(chunk.index) && tx.send(chunk).is_ok(),
+                    )
                 });
                 let handles: Vec<_> = (0..threads)
                     .map(|_| {

@@ -170,6 +170,14 @@ impl InputBytes {
         }
     }
 
+    /// The file map behind the bytes, if they are mapped (not read from a pipe).
+    pub(crate) fn map(&self) -> Option<&memmap2::Mmap> {
+        match &self.bytes {
+            Backing::Mapped(m) => Some(m),
+            Backing::Owned(_) => None,
+        }
+    }
+
     /// The bytes, as stored.
     pub fn bytes(&self) -> &[u8] {
         match &self.bytes {
@@ -310,12 +318,14 @@ pub struct DecodeInfo {
 
 /// Decode `data` and hand newline-aligned chunks to `emit` in order. `emit` returns false to stop
 /// early. zstd files with several frames are decoded frame-parallel; single-frame zstd and gzip
-/// stream on this thread.
+/// stream on this thread. `consumed(a, b)` hears of each range of `data` decoded and no longer
+/// needed (whole batches of frames), so a caller can drop its pages.
 pub fn decode_chunks(
     data: &[u8],
     compression: Compression,
     target: usize,
     max_line: usize,
+    consumed: &dyn Fn(usize, usize),
     emit: &mut dyn FnMut(TextChunk) -> bool,
 ) -> Result<DecodeInfo, StreamFault> {
     let mut st = Stitcher::new(target, max_line);
@@ -356,6 +366,9 @@ pub fn decode_chunks(
                         .par_iter()
                         .map(|&(s, e)| decode_zstd_frame(&data[s..e], s as u64))
                         .collect();
+                    if let (Some(first), Some(last)) = (group.first(), group.last()) {
+                        consumed(first.0, last.1);
+                    }
                     for d in decoded {
                         st.buf.extend_from_slice(&d?);
                         if !st.drain(emit, false)? {
@@ -475,7 +488,7 @@ mod tests {
 
     fn collect(data: &[u8], c: Compression, target: usize) -> Vec<Vec<u8>> {
         let mut out = Vec::new();
-        decode_chunks(data, c, target, 1 << 20, &mut |ch| {
+        decode_chunks(data, c, target, 1 << 20, &|_, _| {}, &mut |ch| {
             out.push(ch.bytes);
             true
         })
@@ -516,7 +529,15 @@ mod tests {
             .collect();
         let z = zstd::encode_all(&text[..], 3).unwrap();
         let cut = &z[..z.len() - 5];
-        let err = decode_chunks(cut, Compression::Zstd, 1000, 1 << 20, &mut |_| true).unwrap_err();
+        let err = decode_chunks(
+            cut,
+            Compression::Zstd,
+            1000,
+            1 << 20,
+            &|_, _| {},
+            &mut |_| true,
+        )
+        .unwrap_err();
         assert!(
             matches!(err, StreamFault::Codec { ref problem, .. } if problem.contains("truncated")),
             "{err:?}"

@@ -19,10 +19,11 @@ struct IntPass {
     keep: bool,
     tallies: Vec<IntTally>,
     kept: Vec<(usize, Raw)>,
-    kept_bytes: u64,
-    over_budget: bool,
     scanned: Scanned,
 }
+
+/// Most bytes of compressed input's edges kept between the passes (see `scan_ints`).
+const KEEP_LIMIT: u64 = 64 << 20;
 
 impl Loader<'_> {
     /// Integer ids, the fast path: pass 1 tallies ids and degrees (compressed input keeps its
@@ -47,10 +48,12 @@ impl Loader<'_> {
                 .min(per_worker)
                 .max(1 << 16),
         };
-        // Compressed input keeps its edges; a decompression bomb must not exhaust memory.
+        // Compressed input keeps its edges while they are few; beyond `KEEP_LIMIT` they would
+        // double the build's peak (they are as large as the adjacency), so they are dropped and
+        // the fill pass decodes the input again instead.
         let kept_bytes = AtomicU64::new(0);
         let over_budget = AtomicBool::new(false);
-        let keep_limit = self.opts.memory_budget / 2;
+        let keep_limit = (self.opts.memory_budget / 2).min(KEEP_LIMIT);
         self.begin("scanning");
         let rules = self.rules.clone();
         let (states, info) = self.each_piece(
@@ -60,12 +63,16 @@ impl Loader<'_> {
                 kept: Vec::new(),
             },
             |w, index, bytes, base| {
-                let go_on = w.scan(index, bytes, base, &rules, keep);
-                if keep {
+                let keeping = keep && !over_budget.load(Ordering::Relaxed);
+                if !keeping {
+                    w.kept = Vec::new();
+                }
+                let go_on = w.scan(index, bytes, base, &rules, keeping);
+                if keeping {
                     let added = w.kept.last().map_or(0, |(_, r)| r.bytes());
                     if kept_bytes.fetch_add(added, Ordering::Relaxed) + added > keep_limit {
                         over_budget.store(true, Ordering::Relaxed);
-                        return false;
+                        w.kept = Vec::new();
                     }
                 }
                 go_on
@@ -86,12 +93,11 @@ impl Loader<'_> {
             // Only edge lists stop: Matrix Market entries are checked as integers before.
             return Ok(None);
         }
+        let dropped = over_budget.into_inner();
         Ok(Some(IntPass {
-            keep,
+            keep: keep && !dropped,
             tallies,
-            kept,
-            kept_bytes: kept_bytes.into_inner(),
-            over_budget: over_budget.into_inner(),
+            kept: if dropped { Vec::new() } else { kept },
             scanned,
         }))
     }
@@ -102,16 +108,10 @@ impl Loader<'_> {
             keep,
             tallies,
             kept,
-            kept_bytes,
-            over_budget,
             scanned,
         } = pass;
 
         self.progress.stage("indexing ids", None, Unit::Items);
-        if over_budget {
-            // The kept edges and the adjacency built from them live together: about twice.
-            return Err(self.over_budget("building from the decompressed edges", 2 * kept_bytes));
-        }
         let index = IntIndex::build(tallies, self.mtx.as_ref().map(|h| h.rows), self.max_nodes())
             .map_err(|f| self.index_fault(f))?;
         self.stage_done(StageName::IndexIds);
@@ -120,7 +120,8 @@ impl Loader<'_> {
         let filler = Filler::new(&index.raw_degree);
         if keep {
             self.progress.stage("filling", None, Unit::Items);
-            kept.par_iter().for_each(|(_, raw)| {
+            // Each piece's edges are freed as soon as they are filled.
+            kept.into_par_iter().for_each(|(_, raw)| {
                 let mut dense = Vec::with_capacity(FILL_BATCH);
                 let mut put = |a: u64, b: u64| {
                     dense.push((index.get(a), index.get(b)));
@@ -129,7 +130,7 @@ impl Loader<'_> {
                         dense.clear();
                     }
                 };
-                match raw {
+                match &raw {
                     Raw::Narrow(v) => v
                         .chunks_exact(2)
                         .for_each(|p| put(p[0] as u64, p[1] as u64)),
@@ -137,7 +138,6 @@ impl Loader<'_> {
                 }
                 filler.edges(&dense);
             });
-            drop(kept);
         } else {
             self.begin("filling");
             let rules = &self.rules;

@@ -1,9 +1,12 @@
 //! Reading an edge file (plain, zstd or gzip; edge list or Matrix Market) into a [`Graph`].
 //!
 //! Plain files are scanned twice straight from the memory map: pass one validates every line and
-//! tallies ids and raw degrees, pass two writes the adjacency. Compressed input is decoded once
-//! (pipelined with parsing) and its integer edges are kept compactly between the passes, so the
-//! decoder, the slowest stage, runs once. Files with text ids take an extra tally pass.
+//! tallies ids and raw degrees, pass two writes the adjacency; each piece's pages leave the
+//! resident set once it is parsed, so a file larger than the store never sits in memory whole.
+//! Compressed input is decoded pipelined with parsing; its integer edges are kept compactly
+//! between the passes while they take under 64 MiB, beyond which keeping them would double the
+//! peak, so the stream is decoded a second time instead. Files with text ids take an extra tally
+//! pass.
 
 mod int_pass;
 mod text_pass;
@@ -187,6 +190,7 @@ impl<'a> Loader<'a> {
             compression,
             piece,
             max_line: opts.max_line,
+            map: input.map(),
         };
         let head = peek(src, path)?;
         if head.is_empty() {
@@ -518,15 +522,6 @@ impl<'a> Loader<'a> {
         self.opts.max_nodes.min(ids::MAX_NODES)
     }
 
-    fn over_budget(&self, what: &str, needed: u64) -> Error {
-        Error::OverBudget {
-            path: self.input.path.clone(),
-            what: what.to_string(),
-            needed_mib: needed.div_ceil(1 << 20),
-            budget_mib: self.opts.memory_budget >> 20,
-        }
-    }
-
     /// The adjacency under construction: raw entries plus per-node offsets and cursors.
     fn check_fill_budget(&self, raw_degree: &[u32]) -> Result<()> {
         let entries: u64 = raw_degree.par_iter().map(|&d| d as u64).sum();
@@ -582,10 +577,17 @@ fn peek<'a>(src: Source<'a>, path: &Path) -> Result<Cow<'a, [u8]>> {
         return Ok(Cow::Borrowed(&src.data[..src.data.len().min(PEEK)]));
     }
     let mut head = Vec::new();
-    let r = source::decode_chunks(src.data, src.compression, PEEK, usize::MAX, &mut |c| {
-        head.extend_from_slice(&c.bytes);
-        head.len() < PEEK
-    });
+    let r = source::decode_chunks(
+        src.data,
+        src.compression,
+        PEEK,
+        usize::MAX,
+        &|_, _| {},
+        &mut |c| {
+            head.extend_from_slice(&c.bytes);
+            head.len() < PEEK
+        },
+    );
     match r {
         Ok(_) => Ok(Cow::Owned(head)),
         Err(StreamFault::Codec { problem, offset }) => Err(Error::Compressed {
