@@ -174,6 +174,26 @@ pub enum Error {
         budget_mib: u64,
     },
 
+    /// The build went to disk (over the memory budget) and the scratch folder's disk lacks
+    /// the room for its sorted runs and the store.
+    #[error(
+        "{path}: building on disk needs about {needed_mib} MiB of scratch space in {dir}, but \
+         {available_mib} MiB {when} (point --scratch at a larger disk, or raise --memory-budget \
+         if the machine has the memory)"
+    )]
+    ScratchFull {
+        /// The input file.
+        path: PathBuf,
+        /// The scratch folder.
+        dir: PathBuf,
+        /// Space needed, in MiB.
+        needed_mib: u64,
+        /// Space usable there, in MiB (free space less what `--scratch-keep-free` keeps).
+        available_mib: u64,
+        /// "are free" before starting, or "were left when the disk filled up" mid-run.
+        when: &'static str,
+    },
+
     /// A store file that fails its checks.
     #[error("{path}: not a usable store file: {problem}")]
     Store {
@@ -214,7 +234,7 @@ impl Error {
     pub fn class(&self) -> ErrorClass {
         match self {
             Error::Io { .. } => ErrorClass::Io,
-            Error::OverBudget { .. } => ErrorClass::Budget,
+            Error::OverBudget { .. } | Error::ScratchFull { .. } => ErrorClass::Budget,
             Error::Parameters { .. } => ErrorClass::Usage,
             _ => ErrorClass::BadInput,
         }

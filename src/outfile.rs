@@ -7,12 +7,77 @@ use std::path::{Path, PathBuf};
 
 use crate::error::{Error, Result};
 
+/// Paths that must not outlive an interrupted run: partial output files and scratch folders.
+/// The interrupt handler removes them (see [`remove_leftovers`]); their owners unregister them
+/// when they finish or clean up themselves.
+static LEFTOVERS: std::sync::Mutex<Vec<(u64, PathBuf)>> = std::sync::Mutex::new(Vec::new());
+static NEXT_LEFTOVER: std::sync::atomic::AtomicU64 = std::sync::atomic::AtomicU64::new(0);
+
+/// A path registered for removal on interrupt; unregistered when dropped.
+pub(crate) struct Leftover(u64);
+
+impl Leftover {
+    pub(crate) fn register(path: &Path) -> Self {
+        let id = NEXT_LEFTOVER.fetch_add(1, std::sync::atomic::Ordering::Relaxed);
+        if let Ok(mut l) = LEFTOVERS.lock() {
+            l.push((id, path.to_path_buf()));
+        }
+        Leftover(id)
+    }
+}
+
+impl Drop for Leftover {
+    fn drop(&mut self) {
+        if let Ok(mut l) = LEFTOVERS.lock() {
+            l.retain(|(id, _)| *id != self.0);
+        }
+    }
+}
+
+static INTERRUPTED: std::sync::atomic::AtomicBool = std::sync::atomic::AtomicBool::new(false);
+
+/// Whether an interrupt is being handled: writers of scratch files stop creating them, so the
+/// folders being removed stay removed.
+pub(crate) fn interrupted() -> bool {
+    INTERRUPTED.load(std::sync::atomic::Ordering::SeqCst)
+}
+
+/// Remove every partial output file and scratch folder still in use: the interrupt (Ctrl-C)
+/// path, which exits without unwinding. Returns how many paths were removed.
+pub fn remove_leftovers() -> usize {
+    INTERRUPTED.store(true, std::sync::atomic::Ordering::SeqCst);
+    let paths: Vec<PathBuf> = match LEFTOVERS.lock() {
+        Ok(mut l) => l.drain(..).map(|(_, p)| p).collect(),
+        Err(_) => return 0,
+    };
+    paths
+        .iter()
+        .filter(|p| {
+            if p.is_dir() {
+                // A worker may have been creating a file as the flag went up: try again
+                // briefly until the folder is gone.
+                (0..20).any(|_| {
+                    let gone = std::fs::remove_dir_all(p).is_ok() || !p.exists();
+                    if !gone {
+                        std::thread::sleep(std::time::Duration::from_millis(10));
+                    }
+                    gone
+                })
+            } else {
+                std::fs::remove_file(p).is_ok()
+            }
+        })
+        .count()
+}
+
 /// A file written beside its destination and renamed over it on commit; dropped uncommitted, it
-/// is removed.
+/// is removed (and removed by [`remove_leftovers`] on interrupt).
 pub struct AtomicFile {
     dest: PathBuf,
     tmp: PathBuf,
     out: Option<BufWriter<File>>,
+    committed: bool,
+    _leftover: Leftover,
 }
 
 impl AtomicFile {
@@ -31,11 +96,20 @@ impl AtomicFile {
             .to_string_lossy()
             .into_owned();
         let tmp = dir.join(format!(".{name}.{}.partial", std::process::id()));
-        let file = File::create(&tmp).map_err(|e| Error::io(&tmp, "create", e))?;
+        // Readable too, so a writer can read back what it wrote (the store's checksum).
+        let file = std::fs::OpenOptions::new()
+            .read(true)
+            .write(true)
+            .create(true)
+            .truncate(true)
+            .open(&tmp)
+            .map_err(|e| Error::io(&tmp, "create", e))?;
         Ok(AtomicFile {
             dest: dest.to_path_buf(),
+            _leftover: Leftover::register(&tmp),
             tmp,
             out: Some(BufWriter::with_capacity(1 << 20, file)),
+            committed: false,
         })
     }
 
@@ -59,7 +133,16 @@ impl AtomicFile {
             .map_err(|e| Error::io(&self.dest, "sync", e))?;
         drop(file);
         std::fs::rename(&self.tmp, &self.dest).map_err(|e| Error::io(&self.dest, "rename", e))?;
+        self.committed = true;
         Ok(())
+    }
+
+    /// Flush the buffer and hand out the file as written so far (to read it back, e.g. for a
+    /// checksum over what was written out of order).
+    pub(crate) fn flushed(&mut self) -> std::io::Result<&File> {
+        let w = self.writer();
+        w.flush()?;
+        Ok(w.get_ref())
     }
 }
 
@@ -74,7 +157,7 @@ impl Write for AtomicFile {
 
 impl Drop for AtomicFile {
     fn drop(&mut self) {
-        if self.out.is_some() {
+        if !self.committed {
             self.out = None;
             let _ = std::fs::remove_file(&self.tmp);
         }

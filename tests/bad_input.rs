@@ -277,8 +277,11 @@ fn decompression_bomb_stops_at_the_budget() {
     let text = b"1 2\n".repeat(16 << 20);
     let z = zstd(&text);
     assert!(z.len() < 64 << 10);
+    // In memory only: the build refuses (by default it would go to disk and merge the
+    // repeats there, with the same bounded memory).
     let opts = LoadOptions {
         memory_budget: 8 << 20,
+        build: plumb::store::load::BuildChoice::Memory,
         ..LoadOptions::default()
     };
     let e = load_bytes("bomb.zst", &z, &opts).unwrap_err();
@@ -294,10 +297,23 @@ fn adjacency_larger_than_the_budget() {
     let text: String = (0..100_000).map(|i| format!("{i} {}\n", i + 1)).collect();
     let opts = LoadOptions {
         memory_budget: 1 << 20,
+        build: plumb::store::load::BuildChoice::Memory,
         ..LoadOptions::default()
     };
     let e = load_bytes("big", text.as_bytes(), &opts).unwrap_err();
     assert!(e.to_string().contains("building the adjacency"), "{e}");
+    // By default the build goes to disk instead, down to the per-node arrays' own size
+    // (tests/external_build.rs checks what it builds).
+    let e = load_bytes(
+        "big",
+        text.as_bytes(),
+        &LoadOptions {
+            memory_budget: 1 << 20,
+            ..LoadOptions::default()
+        },
+    )
+    .unwrap_err();
+    assert!(e.to_string().contains("even built on disk"), "{e}");
 }
 
 #[test]

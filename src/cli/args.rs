@@ -4,7 +4,7 @@
 use std::path::PathBuf;
 
 use clap::{Args as ClapArgs, Parser, Subcommand, ValueEnum};
-use plumb::store::load::{FormatChoice, HeaderChoice, LoadOptions};
+use plumb::store::load::{BuildChoice, FormatChoice, HeaderChoice, LoadOptions};
 
 #[derive(Parser, Debug)]
 #[command(
@@ -445,6 +445,34 @@ pub(crate) struct InputArgs {
     /// Memory the build may use, e.g. 8G (default: 90% of the memory available now).
     #[arg(long, value_name = "SIZE", value_parser = plumb::store::limits::parse_size)]
     pub(crate) memory_budget: Option<u64>,
+    /// Where the adjacency is built: in memory when it fits the budget, else on disk (auto);
+    /// memory only (stop when over budget); or always on disk.
+    #[arg(long, value_enum, default_value_t = BuildArg::Auto)]
+    pub(crate) build: BuildArg,
+    /// Folder for a build on disk's sorted runs (default: beside the output store, else the
+    /// system's temporary folder); removed on every exit, Ctrl-C included.
+    #[arg(long, value_name = "DIR")]
+    pub(crate) scratch: Option<PathBuf>,
+    /// Space a build on disk leaves free on the scratch disk; it refuses to start otherwise.
+    #[arg(long, value_name = "SIZE", default_value = "1G", value_parser = parse_size_or_zero)]
+    pub(crate) scratch_keep_free: u64,
+}
+
+fn parse_size_or_zero(s: &str) -> Result<u64, plumb::error::ParamError> {
+    if s.trim() == "0" {
+        return Ok(0);
+    }
+    plumb::store::limits::parse_size(s)
+}
+
+#[derive(ValueEnum, Clone, Copy, Debug)]
+pub(crate) enum BuildArg {
+    /// In memory when it fits --memory-budget, else on disk.
+    Auto,
+    /// In memory only.
+    Memory,
+    /// On disk: sorted runs merged into a mapped store.
+    Disk,
 }
 
 #[derive(ValueEnum, Clone, Copy, Debug)]
@@ -485,6 +513,13 @@ impl InputArgs {
             memory_budget: self
                 .memory_budget
                 .unwrap_or_else(plumb::store::limits::default_memory_budget),
+            build: match self.build {
+                BuildArg::Auto => BuildChoice::Auto,
+                BuildArg::Memory => BuildChoice::Memory,
+                BuildArg::Disk => BuildChoice::Disk,
+            },
+            scratch: self.scratch.clone(),
+            scratch_keep_free: self.scratch_keep_free,
             ..LoadOptions::default()
         }
     }

@@ -339,9 +339,8 @@ fn trend(history: &Path, out: &Path, check: &CheckArgs) -> Result<(), Error> {
 fn pack(input: &InputArgs, out: &Path, bars: &bars::Bars) -> Result<(), Error> {
     file_only("pack -o", out)?;
     refuse_overwrite(out, &input.input)?;
-    let g = load(&input.input, &input.options(), bars)?;
     let t = std::time::Instant::now();
-    let bytes = plumb::store::file::write(&g, out)?;
+    let (g, bytes) = plumb::store::load::pack(&input.input, out, &input.options(), bars)?;
     print!("{}", show::intake_text(&g, "pack"));
     println!(
         "  {:<11}{} ({}) in {:.2} s",

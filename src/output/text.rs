@@ -86,6 +86,19 @@ pub fn intake_text(g: &Graph, command: &str) -> String {
         ),
         None => row(&mut out, "read", read),
     }
+    if let Some(d) = &i.on_disk {
+        row(
+            &mut out,
+            "built",
+            format!(
+                "on disk, within a memory budget of {}: {} sorted runs ({}) merged into a \
+                 store file; the analyses read it as mapped pages, from disk as needed",
+                bytes(d.memory_budget),
+                count(d.runs),
+                bytes(d.run_bytes)
+            ),
+        );
+    }
     if let Some(f) = &i.first_text_id {
         let why = if f.integer_too_large {
             format!(

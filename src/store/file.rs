@@ -135,115 +135,147 @@ fn checksum(header: &[u8], body: &[u8]) -> u64 {
     xxh3_64(&all)
 }
 
-/// Streams the body, hashing 16 MiB blocks as they pass.
-struct BodyWriter<'a> {
-    out: &'a mut AtomicFile,
-    pos: u64,
-    block: xxhash_rust::xxh3::Xxh3,
-    in_block: usize,
-    digests: Vec<u8>,
+fn align(pos: u64) -> u64 {
+    pos.next_multiple_of(ALIGN)
 }
 
-impl BodyWriter<'_> {
-    fn put(&mut self, mut bytes: &[u8]) -> std::io::Result<()> {
-        self.out.write_all(bytes)?;
-        self.pos += bytes.len() as u64;
-        while !bytes.is_empty() {
-            let take = (BLOCK - self.in_block).min(bytes.len());
-            self.block.update(&bytes[..take]);
-            self.in_block += take;
-            bytes = &bytes[take..];
-            if self.in_block == BLOCK {
-                self.digests
-                    .extend_from_slice(&self.block.digest().to_le_bytes());
-                self.block.reset();
-                self.in_block = 0;
+/// Byte position of the targets section in a store of `n` nodes: right after the offsets.
+fn targets_at(n: u64) -> u64 {
+    align(HEADER as u64 + (n + 1) * 8)
+}
+
+/// Writes a store file whose targets arrive first, as a stream (from memory, or from the
+/// merge of the build on disk), and whose offsets, ids and intake follow once known. Both
+/// builds go through it, so their files agree byte for byte.
+pub(crate) struct StoreWriter {
+    file: AtomicFile,
+    path: std::path::PathBuf,
+    n: u64,
+}
+
+impl StoreWriter {
+    /// Start a store of `n` nodes at `dest` (atomically: nothing appears there before
+    /// [`StoreWriter::finish`]).
+    pub(crate) fn create(dest: &Path, n: u64) -> Result<Self> {
+        let mut file = AtomicFile::create(dest)?;
+        file.writer()
+            .seek(SeekFrom::Start(targets_at(n)))
+            .map_err(|e| file.fail(e))?;
+        Ok(StoreWriter {
+            file,
+            path: dest.to_path_buf(),
+            n,
+        })
+    }
+
+    /// Where the targets go, in order.
+    pub(crate) fn targets(&mut self) -> &mut dyn Write {
+        self.file.writer()
+    }
+
+    /// Map a write error to one naming the store.
+    pub(crate) fn fail(&self, e: std::io::Error) -> Error {
+        self.file.fail(e)
+    }
+
+    /// Write the offsets (whose last entry is the number of targets written), the ids and the
+    /// intake, then the header with its checksum (read back from the file), and move the file
+    /// into place. Returns the file size.
+    pub(crate) fn finish(self, offsets: &[u64], ids: &NodeIds, intake: &Intake) -> Result<u64> {
+        let StoreWriter { mut file, path, n } = self;
+        let intake = serde_json::to_vec(intake).map_err(|e| Error::Output {
+            path: path.clone(),
+            problem: format!("cannot encode the intake report: {e}"),
+        })?;
+        debug_assert_eq!(offsets.len() as u64, n + 1);
+        let entries = offsets.last().copied().unwrap_or(0);
+        let mut h = Header {
+            version: VERSION,
+            header_len: HEADER as u32,
+            n,
+            entries,
+            offsets_at: HEADER as u64,
+            targets_at: targets_at(n),
+            ..Header::default()
+        };
+        let w = file.writer();
+        let result = (|| -> std::io::Result<()> {
+            // Sections are padded with explicit zeros (not holes) up to each boundary.
+            let mut pos = h.targets_at + entries * 4;
+            let pad_to = |w: &mut std::io::BufWriter<std::fs::File>, pos: &mut u64| {
+                let next = align(*pos);
+                w.write_all(&vec![0u8; (next - *pos) as usize])?;
+                *pos = next;
+                Ok::<u64, std::io::Error>(next)
+            };
+            h.ids_at = pad_to(w, &mut pos)?;
+            let put = |w: &mut std::io::BufWriter<std::fs::File>, b: &[u8], pos: &mut u64| {
+                *pos += b.len() as u64;
+                w.write_all(b)
+            };
+            match ids {
+                NodeIds::Range { first, .. } => {
+                    h.id_kind = 0;
+                    h.id_first = *first;
+                }
+                NodeIds::Ints(v) => {
+                    h.id_kind = 1;
+                    put(w, bytemuck::cast_slice(v), &mut pos)?;
+                }
+                NodeIds::Text { offsets, bytes } => {
+                    h.id_kind = 2;
+                    put(w, bytemuck::cast_slice(offsets), &mut pos)?;
+                    h.id_bytes_at = pad_to(w, &mut pos)?;
+                    h.id_bytes_len = bytes.len() as u64;
+                    put(w, bytes, &mut pos)?;
+                }
             }
-        }
-        Ok(())
-    }
-
-    /// Pad to the next section boundary and return the position there.
-    fn align(&mut self) -> std::io::Result<u64> {
-        let pad = (ALIGN - self.pos % ALIGN) % ALIGN;
-        self.put(&vec![0u8; pad as usize])?;
-        Ok(self.pos)
-    }
-
-    fn finish(mut self) -> Vec<u8> {
-        if self.in_block > 0 {
-            self.digests
-                .extend_from_slice(&self.block.digest().to_le_bytes());
-        }
-        self.digests
+            h.intake_at = pad_to(w, &mut pos)?;
+            h.intake_len = intake.len() as u64;
+            put(w, &intake, &mut pos)?;
+            h.file_len = pos;
+            w.seek(SeekFrom::Start(0))?;
+            w.write_all(&[0u8; HEADER])?;
+            w.write_all(bytemuck::cast_slice(offsets))?;
+            let gap = h.targets_at - (HEADER as u64 + offsets.len() as u64 * 8);
+            w.write_all(&vec![0u8; gap as usize])?;
+            Ok(())
+        })();
+        result.map_err(|e| file.fail(e))?;
+        let body_digest = {
+            let f = file.flushed().map_err(|e| Error::io(&path, "write", e))?;
+            // SAFETY: the file is this process's own temporary file, not yet visible to others;
+            // nothing writes to it while the map lives.
+            let map = unsafe { memmap2::Mmap::map(f) }.map_err(|e| Error::io(&path, "map", e))?;
+            if map.len() as u64 != h.file_len {
+                return Err(Error::Output {
+                    path: path.clone(),
+                    problem: format!(
+                        "the store came out {} bytes long, not the {} its sections take",
+                        map.len(),
+                        h.file_len
+                    ),
+                });
+            }
+            checksum(&h.encode(), &map[HEADER..])
+        };
+        h.checksum = body_digest;
+        let w = file.writer();
+        w.seek(SeekFrom::Start(0))
+            .and_then(|_| w.write_all(&h.encode()))
+            .map_err(|e| Error::io(&path, "write", e))?;
+        file.commit()?;
+        Ok(h.file_len)
     }
 }
 
 /// Save `graph` to `path` atomically. Returns the file size.
 pub fn write(graph: &Graph, path: &Path) -> Result<u64> {
-    let mut file = AtomicFile::create(path)?;
-    let intake = serde_json::to_vec(&graph.intake).map_err(|e| Error::Output {
-        path: path.to_path_buf(),
-        problem: format!("cannot encode the intake report: {e}"),
-    })?;
-    let mut h = Header {
-        version: VERSION,
-        header_len: HEADER as u32,
-        n: graph.csr.node_count() as u64,
-        entries: graph.csr.targets().len() as u64,
-        ..Header::default()
-    };
-    let io = |f: &AtomicFile, e| f.fail(e);
-    file.write_all(&[0u8; HEADER]).map_err(|e| io(&file, e))?;
-    let mut body = BodyWriter {
-        out: &mut file,
-        pos: HEADER as u64,
-        block: xxhash_rust::xxh3::Xxh3::new(),
-        in_block: 0,
-        digests: Vec::new(),
-    };
-    let result = (|| -> std::io::Result<()> {
-        h.offsets_at = body.align()?;
-        body.put(bytemuck::cast_slice(graph.csr.offsets()))?;
-        h.targets_at = body.align()?;
-        body.put(bytemuck::cast_slice(graph.csr.targets()))?;
-        h.ids_at = body.align()?;
-        match &graph.ids {
-            NodeIds::Range { first, .. } => {
-                h.id_kind = 0;
-                h.id_first = *first;
-            }
-            NodeIds::Ints(v) => {
-                h.id_kind = 1;
-                body.put(bytemuck::cast_slice(v))?;
-            }
-            NodeIds::Text { offsets, bytes } => {
-                h.id_kind = 2;
-                body.put(bytemuck::cast_slice(offsets))?;
-                h.id_bytes_at = body.align()?;
-                h.id_bytes_len = bytes.len() as u64;
-                body.put(bytes)?;
-            }
-        }
-        h.intake_at = body.align()?;
-        h.intake_len = intake.len() as u64;
-        body.put(&intake)?;
-        Ok(())
-    })();
-    result.map_err(|e| body.out.fail(e))?;
-    h.file_len = body.pos;
-    let digests = body.finish();
-    let mut head = h.encode();
-    let mut all = head[..112].to_vec();
-    all.extend_from_slice(&digests);
-    h.checksum = xxh3_64(&all);
-    head = h.encode();
-    let w = file.writer();
-    w.seek(SeekFrom::Start(0))
-        .and_then(|_| w.write_all(&head))
-        .map_err(|e| Error::io(path, "write", e))?;
-    file.commit()?;
-    Ok(h.file_len)
+    let mut w = StoreWriter::create(path, graph.csr.node_count() as u64)?;
+    w.targets()
+        .write_all(bytemuck::cast_slice(graph.csr.targets()))
+        .map_err(|e| w.fail(e))?;
+    w.finish(graph.csr.offsets(), &graph.ids, &graph.intake)
 }
 
 /// Open a store file in place.
@@ -325,7 +357,8 @@ fn open_checked(path: &Path, map: Arc<memmap2::Mmap>, len: usize) -> Result<Grap
     }
     let ids = match h.id_kind {
         0 => {
-            if h.id_first.checked_add(h.n).is_none() {
+            // The last id is first + n - 1, which may be 2^64 - 1 itself.
+            if h.n > 0 && h.id_first.checked_add(h.n - 1).is_none() {
                 return Err(bad("the id range overflows".into()));
             }
             NodeIds::Range {

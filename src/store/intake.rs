@@ -177,6 +177,24 @@ pub struct Intake {
     pub first_text_id: Option<FirstTextId>,
     /// Wall time of each stage of the build.
     pub stages: Vec<Stage>,
+    /// Present when the adjacency was built on disk (over the memory budget): the analyses
+    /// then read a mapped store, with pages coming from disk as needed.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub on_disk: Option<DiskBuild>,
+}
+
+/// How a build on disk went: sorted runs in a scratch folder, merged into a store file (an
+/// external merge sort; Knuth, *The Art of Computer Programming* vol. 3, 1998, §5.4.1).
+#[derive(Debug, Clone, PartialEq, Eq, Serialize, Deserialize, schemars::JsonSchema)]
+pub struct DiskBuild {
+    /// The folder the runs went to (removed afterwards).
+    pub scratch: String,
+    /// Sorted runs written and merged.
+    pub runs: u64,
+    /// Bytes the runs took.
+    pub run_bytes: u64,
+    /// The memory budget the build kept to, in bytes.
+    pub memory_budget: u64,
 }
 
 /// The first id that is not an integer up to 2^64-1, which makes every id of the file text (so
@@ -221,6 +239,7 @@ impl Intake {
             id_kind: IdKind::Integer,
             first_text_id: None,
             stages: Vec::new(),
+            on_disk: None,
         }
     }
 

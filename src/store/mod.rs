@@ -14,3 +14,4 @@ pub mod load;
 #[cfg(any(test, feature = "reference"))]
 pub mod reference;
 pub(crate) mod slab;
+pub(crate) mod spill;

@@ -9,10 +9,10 @@ use crate::error::Result;
 use crate::progress::Unit;
 use crate::read::scan::{self, ChunkOutcome, ScanRules};
 use crate::read::source::Compression;
-use crate::store::fill::Filler;
 use crate::store::graph::{Graph, NodeIds};
 use crate::store::ids::{IntIndex, IntTally};
 use crate::store::intake::{IdKind, StageName};
+use crate::store::spill::SpillBuf;
 
 /// What pass 1 over integer ids leaves for pass 2.
 struct IntPass {
@@ -116,42 +116,48 @@ impl Loader<'_> {
             .map_err(|f| self.index_fault(f))?;
         self.stage_done(StageName::IndexIds);
 
-        self.check_fill_budget(&index.raw_degree)?;
-        let filler = Filler::new(&index.raw_degree);
+        let sink = self.plan_fill(&index.raw_degree)?;
         if keep {
             self.progress.stage("filling", None, Unit::Items);
             // Each piece's edges are freed as soon as they are filled.
-            kept.into_par_iter().for_each(|(_, raw)| {
-                let mut dense = Vec::with_capacity(FILL_BATCH);
-                let mut put = |a: u64, b: u64| {
-                    dense.push((index.get(a), index.get(b)));
-                    if dense.len() == FILL_BATCH {
-                        filler.edges(&dense);
-                        dense.clear();
+            let bufs: Vec<SpillBuf> = kept
+                .into_par_iter()
+                .fold(SpillBuf::default, |mut buf, (_, raw)| {
+                    let mut dense = Vec::with_capacity(FILL_BATCH);
+                    let mut ok = true;
+                    let mut put = |a: u64, b: u64| {
+                        dense.push((index.get(a), index.get(b)));
+                        if dense.len() == FILL_BATCH {
+                            ok &= sink.put(&mut buf, &dense);
+                            dense.clear();
+                        }
+                    };
+                    match &raw {
+                        Raw::Narrow(v) => v
+                            .chunks_exact(2)
+                            .for_each(|p| put(p[0] as u64, p[1] as u64)),
+                        Raw::Wide(v) => v.chunks_exact(2).for_each(|p| put(p[0], p[1])),
                     }
-                };
-                match &raw {
-                    Raw::Narrow(v) => v
-                        .chunks_exact(2)
-                        .for_each(|p| put(p[0] as u64, p[1] as u64)),
-                    Raw::Wide(v) => v.chunks_exact(2).for_each(|p| put(p[0], p[1])),
-                }
-                filler.edges(&dense);
-            });
+                    sink.put(&mut buf, &dense);
+                    buf
+                })
+                .collect();
+            sink.drain(bufs);
         } else {
             self.begin("filling");
             let rules = &self.rules;
-            self.each_piece(
-                || (),
-                |_, i, bytes, base| {
+            let (bufs, _) = self.each_piece(
+                SpillBuf::default,
+                |buf, i, bytes, base| {
                     // Parse a batch, then map and store it in a tight loop: the random writes
                     // overlap far better than when interleaved with parsing.
                     let mut batch: Vec<(u64, u64)> = Vec::with_capacity(FILL_BATCH);
                     let mut dense: Vec<(u32, u32)> = Vec::with_capacity(FILL_BATCH);
-                    let mut flush = |batch: &mut Vec<(u64, u64)>| {
+                    let mut ok = true;
+                    let mut flush = |batch: &mut Vec<(u64, u64)>, buf: &mut SpillBuf| {
                         dense.clear();
                         dense.extend(batch.iter().map(|&(a, b)| (index.get(a), index.get(b))));
-                        filler.edges(&dense);
+                        ok &= sink.put(buf, &dense);
                         batch.clear();
                     };
                     scan::scan_chunk(i, bytes, base, rules, |a, b| {
@@ -160,20 +166,21 @@ impl Loader<'_> {
                         {
                             batch.push((a, b));
                             if batch.len() == FILL_BATCH {
-                                flush(&mut batch);
+                                flush(&mut batch, buf);
                             }
                         }
                         true
                     });
-                    flush(&mut batch);
-                    true
+                    flush(&mut batch, buf);
+                    ok
                 },
                 &scanned.outcomes,
             )?;
+            sink.drain(bufs);
         }
         self.stage_done(StageName::Fill);
         let ids = NodeIds::from_ints(index.into_ids());
-        self.finish(filler, ids, IdKind::Integer, scanned)
+        self.finish_sink(sink, ids, IdKind::Integer, scanned)
     }
 }
 

@@ -9,6 +9,7 @@
 //! pass.
 
 mod int_pass;
+mod on_disk;
 mod text_pass;
 
 use std::borrow::Cow;
@@ -53,6 +54,18 @@ pub enum HeaderChoice {
     None,
 }
 
+/// Where the adjacency is built.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Default)]
+pub enum BuildChoice {
+    /// In memory when it fits the memory budget, else on disk.
+    #[default]
+    Auto,
+    /// In memory only: a build over the budget stops with [`Error::OverBudget`].
+    Memory,
+    /// On disk always: sorted runs in the scratch folder merged into a mapped store.
+    Disk,
+}
+
 /// How to read an input: grammar, header, malformed lines, limits.
 #[derive(Debug, Clone)]
 pub struct LoadOptions {
@@ -68,8 +81,16 @@ pub struct LoadOptions {
     pub piece_bytes: usize,
     /// Most distinct nodes accepted (at most 2^32 - 1).
     pub max_nodes: u64,
-    /// Bytes the build may allocate; a build that would need more stops with a clear error.
+    /// Bytes the build may allocate; a build that would need more goes to disk (or, with
+    /// [`BuildChoice::Memory`], stops with a clear error).
     pub memory_budget: u64,
+    /// In memory, on disk, or whichever fits the budget.
+    pub build: BuildChoice,
+    /// Where a build on disk puts its sorted runs (a private folder is made inside): `None`
+    /// for beside the output store when there is one, else the system's temporary folder.
+    pub scratch: Option<std::path::PathBuf>,
+    /// Bytes a build on disk leaves free on the scratch disk; it refuses to start otherwise.
+    pub scratch_keep_free: u64,
 }
 
 impl Default for LoadOptions {
@@ -82,6 +103,9 @@ impl Default for LoadOptions {
             piece_bytes: 0,
             max_nodes: ids::MAX_NODES,
             memory_budget: crate::store::limits::default_memory_budget(),
+            build: BuildChoice::Auto,
+            scratch: None,
+            scratch_keep_free: 1 << 30,
         }
     }
 }
@@ -106,6 +130,37 @@ pub fn load(path: &Path, opts: &LoadOptions, progress: &dyn Progress) -> Result<
 
 /// Load from bytes already opened.
 pub fn load_input(input: InputBytes, opts: &LoadOptions, progress: &dyn Progress) -> Result<Graph> {
+    load_to(input, None, opts, progress)
+}
+
+/// Load an input and save it as a store file at `dest` (atomically); returns the graph and the
+/// file's size. A build on disk merges straight into `dest` and maps it; an in-memory build
+/// writes its graph there. Either way the file is the same, byte for byte, but for the build's
+/// timings and the note that it ran on disk.
+pub fn pack(
+    path: &Path,
+    dest: &Path,
+    opts: &LoadOptions,
+    progress: &dyn Progress,
+) -> Result<(Graph, u64)> {
+    let g = load_to(InputBytes::open(path)?, Some(dest), opts, progress)?;
+    // Built on disk just now (not a store file given as input): the merge wrote `dest`.
+    if g.intake.on_disk.is_some() && g.intake.packed_from.is_none() {
+        let bytes = std::fs::metadata(dest)
+            .map_err(|e| Error::io(dest, "read", e))?
+            .len();
+        return Ok((g, bytes));
+    }
+    let bytes = crate::store::file::write(&g, dest)?;
+    Ok((g, bytes))
+}
+
+fn load_to(
+    input: InputBytes,
+    dest: Option<&Path>,
+    opts: &LoadOptions,
+    progress: &dyn Progress,
+) -> Result<Graph> {
     let compression = match source::sniff(input.bytes()) {
         Sniffed::Store => return crate::store::file::open_input(input),
         Sniffed::Unsupported(format) => {
@@ -123,7 +178,9 @@ pub fn load_input(input: InputBytes, opts: &LoadOptions, progress: &dyn Progress
         Sniffed::Text => Compression::None,
         Sniffed::Compressed(c) => c,
     };
-    Loader::new(&input, compression, opts, progress)?.run()
+    let mut loader = Loader::new(&input, compression, opts, progress)?;
+    loader.dest = dest;
+    loader.run()
 }
 
 /// Memory per node while building: offsets (8), raw degree (4), two cursors (8), id (8).
@@ -160,6 +217,8 @@ struct Loader<'a> {
     clock: Instant,
     /// Why the ids are text: the first id that is not an integer up to 2^64-1.
     first_text_id: Option<FirstTextId>,
+    /// The store file being made, when packing.
+    dest: Option<&'a Path>,
 }
 
 /// What the first pass over the text found.
@@ -275,6 +334,7 @@ impl<'a> Loader<'a> {
             stages: Vec::new(),
             clock: Instant::now(),
             first_text_id: None,
+            dest: None,
         })
     }
 
@@ -296,6 +356,7 @@ impl<'a> Loader<'a> {
         self.progress.stage(name, total, Unit::Bytes);
     }
 
+    /// The in-memory build's end: sort and merge the lists, then count what merging found.
     fn finish(
         mut self,
         filler: Filler,
@@ -309,6 +370,27 @@ impl<'a> Loader<'a> {
             problem,
         })?;
         self.stage_done(StageName::SortAndMerge);
+        let intake = self.intake(
+            &filled.offsets,
+            filled.directed_pairs,
+            id_kind,
+            scanned,
+            None,
+        )?;
+        let csr = crate::store::csr::Csr::from_parts(filled.offsets.into(), filled.targets.into());
+        Ok(Graph { csr, ids, intake })
+    }
+
+    /// What reading found, from the finished offsets and the merge's count of distinct
+    /// directed pairs.
+    fn intake(
+        &mut self,
+        offsets: &[u64],
+        directed_pairs: u64,
+        id_kind: IdKind,
+        scanned: Scanned,
+        on_disk: Option<crate::store::intake::DiskBuild>,
+    ) -> Result<Intake> {
         let mut total = Counts::default();
         let mut examples = Vec::new();
         let mut header_skipped = false;
@@ -328,17 +410,10 @@ impl<'a> Loader<'a> {
             }
             line_base += o.counts.lines;
         }
-        let csr = crate::store::csr::Csr::from_parts(filled.offsets.into(), filled.targets.into());
-        let n = csr.node_count() as u64;
-        let m = csr.edge_count();
+        let n = offsets.len() as u64 - 1;
+        let m = offsets.last().copied().unwrap_or(0) / 2;
         let loopless = total.edge_lines - total.loops;
-        let isolated = {
-            let o = csr.offsets();
-            (0..csr.node_count())
-                .into_par_iter()
-                .filter(|&u| o[u] == o[u + 1])
-                .count() as u64
-        };
+        let isolated = offsets.par_windows(2).filter(|w| w[0] == w[1]).count() as u64;
         if n == 0 {
             return Err(Error::Empty {
                 path: self.input.path.clone(),
@@ -362,7 +437,7 @@ impl<'a> Loader<'a> {
             ),
             None => (total.lines, total.comments),
         };
-        let intake = Intake {
+        Ok(Intake {
             source: self.input.path.display().to_string(),
             packed_from: None,
             format: if self.mtx.is_some() {
@@ -385,8 +460,8 @@ impl<'a> Loader<'a> {
             edge_lines: total.edge_lines,
             extra_column_lines: total.extra,
             self_loops: total.loops,
-            repeated_lines: loopless - filled.directed_pairs,
-            reciprocal_pairs: filled.directed_pairs - m,
+            repeated_lines: loopless - directed_pairs,
+            reciprocal_pairs: directed_pairs - m,
             malformed_skipped: total.malformed,
             malformed_examples: examples,
             nodes: n,
@@ -395,8 +470,8 @@ impl<'a> Loader<'a> {
             id_kind,
             first_text_id: self.first_text_id.take(),
             stages: std::mem::take(&mut self.stages),
-        };
-        Ok(Graph { csr, ids, intake })
+            on_disk,
+        })
     }
 
     /// Order outcomes, turn the first error into a positioned message, check Matrix Market
@@ -520,24 +595,6 @@ impl<'a> Loader<'a> {
 
     fn max_nodes(&self) -> u64 {
         self.opts.max_nodes.min(ids::MAX_NODES)
-    }
-
-    /// The adjacency under construction: raw entries plus per-node offsets and cursors.
-    fn check_fill_budget(&self, raw_degree: &[u32]) -> Result<()> {
-        let entries: u64 = raw_degree.par_iter().map(|&d| d as u64).sum();
-        let needed = entries
-            .saturating_mul(4)
-            .saturating_add((raw_degree.len() as u64 + 1).saturating_mul(BYTES_PER_NODE));
-        check_budget(
-            &self.input.path,
-            self.opts,
-            format!(
-                "building the adjacency of {} nodes and {} edge entries",
-                raw_degree.len(),
-                entries
-            ),
-            needed,
-        )
     }
 
     fn index_fault(&self, f: IndexFault) -> Error {

@@ -4,10 +4,10 @@
 use super::{FirstTextId, Loader, Scanned};
 use crate::error::{Result, excerpt};
 use crate::read::scan;
-use crate::store::fill::Filler;
 use crate::store::graph::{Graph, NodeIds};
 use crate::store::ids::{TextIndex, TextTally};
 use crate::store::intake::{IdKind, StageName};
+use crate::store::spill::SpillBuf;
 
 impl Loader<'_> {
     /// Text ids: tally tokens, then fill (each pass re-reads the text).
@@ -53,28 +53,29 @@ impl Loader<'_> {
         let index = TextIndex::build(tallies, self.max_nodes()).map_err(|f| self.index_fault(f))?;
         self.stage_done(StageName::IndexIds);
 
-        self.check_fill_budget(&index.raw_degree)?;
-        let filler = Filler::new(&index.raw_degree);
+        let sink = self.plan_fill(&index.raw_degree)?;
         self.begin("filling");
-        self.each_piece(
-            || (),
-            |_, i, bytes, base| {
+        let (bufs, _) = self.each_piece(
+            SpillBuf::default,
+            |buf, i, bytes, base| {
+                let mut ok = true;
                 scan::scan_chunk(i, bytes, base, &rules, |a, b| {
                     if a.raw != b.raw {
-                        filler.edge(index.get(a.raw), index.get(b.raw));
+                        ok &= sink.put_one(buf, index.get(a.raw), index.get(b.raw));
                     }
-                    true
+                    ok
                 });
-                true
+                ok
             },
             &scanned.outcomes,
         )?;
+        sink.drain(bufs);
         self.stage_done(StageName::Fill);
         let ids = NodeIds::Text {
             offsets: index.offsets.into(),
             bytes: index.bytes.into(),
         };
-        self.finish(filler, ids, IdKind::Text, scanned)
+        self.finish_sink(sink, ids, IdKind::Text, scanned)
     }
 
     /// The earliest of the pieces' first text ids, with its line in the whole text.

@@ -1,0 +1,268 @@
+//! Where the fill pass writes: the in-memory [`Filler`] when the adjacency fits the memory
+//! budget, else sorted runs on disk ([`crate::store::spill`]) merged into a mapped store.
+
+use std::path::{Path, PathBuf};
+
+use rayon::prelude::*;
+
+use super::{BYTES_PER_NODE, BuildChoice, Loader, Scanned, check_budget};
+use crate::error::{Error, Result};
+use crate::store::file::{self, StoreWriter};
+use crate::store::fill::Filler;
+use crate::store::graph::{Graph, NodeIds};
+use crate::store::intake::{DiskBuild, IdKind, StageName};
+use crate::store::spill::{Scratch, SpillBuf, Spiller, usable_space};
+
+/// The fill pass's destination.
+pub(super) enum Sink {
+    Memory(Filler),
+    Disk {
+        spiller: Spiller,
+        /// Keys the pass must write (two per loop-free edge line), to catch a changed input.
+        expected: u64,
+    },
+}
+
+impl Sink {
+    /// Write a batch of edge lines; false once writing to disk failed (the pass should stop).
+    #[inline]
+    pub(super) fn put(&self, buf: &mut SpillBuf, batch: &[(u32, u32)]) -> bool {
+        match self {
+            Sink::Memory(f) => {
+                f.edges(batch);
+                true
+            }
+            Sink::Disk { spiller, .. } => buf.edges(batch, spiller),
+        }
+    }
+
+    /// Write one edge line.
+    #[inline]
+    pub(super) fn put_one(&self, buf: &mut SpillBuf, u: u32, v: u32) -> bool {
+        match self {
+            Sink::Memory(f) => {
+                f.edge(u, v);
+                true
+            }
+            Sink::Disk { spiller, .. } => buf.edge(u, v, spiller),
+        }
+    }
+
+    /// Write what the workers' buffers still hold (sorted in parallel).
+    pub(super) fn drain(&self, bufs: Vec<SpillBuf>) {
+        if let Sink::Disk { spiller, .. } = self {
+            bufs.into_par_iter().for_each(|mut b| {
+                spiller.spill(&mut b);
+            });
+        }
+    }
+}
+
+/// Bytes kept back from the run buffers for decoding and parsing.
+const RESERVE: u64 = 64 << 20;
+
+impl Loader<'_> {
+    /// Choose the fill's destination from the raw degrees: memory when the adjacency under
+    /// construction fits the budget (or the user asked for memory), else disk.
+    pub(super) fn plan_fill(&self, raw_degree: &[u32]) -> Result<Sink> {
+        let entries: u64 = raw_degree.par_iter().map(|&d| d as u64).sum();
+        let n = raw_degree.len() as u64;
+        let per_node = (n + 1).saturating_mul(BYTES_PER_NODE);
+        let in_memory = entries.saturating_mul(4).saturating_add(per_node);
+        let what = || format!("building the adjacency of {n} nodes and {entries} edge entries");
+        match self.opts.build {
+            BuildChoice::Memory => {
+                check_budget(&self.input.path, self.opts, what(), in_memory)?;
+                return Ok(Sink::Memory(Filler::new(raw_degree)));
+            }
+            BuildChoice::Auto if in_memory <= self.opts.memory_budget => {
+                return Ok(Sink::Memory(Filler::new(raw_degree)));
+            }
+            _ => {}
+        }
+        // On disk the per-node arrays stay in memory; everything else streams.
+        check_budget(
+            &self.input.path,
+            self.opts,
+            format!("even built on disk, the per-node arrays of {n} nodes"),
+            per_node,
+        )?;
+        let budget = self.opts.memory_budget;
+        let reserve = RESERVE.min(budget / 8);
+        let spare = budget.saturating_sub(per_node + reserve);
+        // Each worker holds a front and a back buffer of 8-byte keys.
+        let keys_per_buffer = (spare / (self.threads as u64 * 2 * 8)).max(1024) as usize;
+
+        let parent = self.scratch_parent();
+        let run_bytes = entries.saturating_mul(8);
+        let store_bytes = 4096 + (n + 1) * 8 + entries * 4 + n * 8;
+        match self.dest {
+            None => self.check_space(&parent, run_bytes + store_bytes)?,
+            Some(dest) => {
+                let dest_dir = parent_of(dest);
+                if same_device(&parent, &dest_dir) {
+                    self.check_space(&parent, run_bytes + store_bytes)?;
+                } else {
+                    self.check_space(&parent, run_bytes)?;
+                    self.check_space(&dest_dir, store_bytes)?;
+                }
+            }
+        }
+        let scratch = Scratch::create(&parent).map_err(|e| Error::io(&parent, "create in", e))?;
+        Ok(Sink::Disk {
+            spiller: Spiller::new(scratch, keys_per_buffer),
+            expected: entries,
+        })
+    }
+
+    /// The folder a build on disk works in: `--scratch`, else beside the store being made,
+    /// else the system's temporary folder.
+    fn scratch_parent(&self) -> PathBuf {
+        match (&self.opts.scratch, self.dest) {
+            (Some(dir), _) => dir.clone(),
+            (None, Some(dest)) => parent_of(dest),
+            (None, None) => std::env::temp_dir(),
+        }
+    }
+
+    fn check_space(&self, dir: &Path, needed: u64) -> Result<()> {
+        let free = usable_space(dir).map_err(|e| Error::io(dir, "inspect", e))?;
+        let usable = free.saturating_sub(self.opts.scratch_keep_free);
+        if needed > usable {
+            return Err(Error::ScratchFull {
+                path: self.input.path.clone(),
+                dir: dir.to_path_buf(),
+                needed_mib: needed.div_ceil(1 << 20),
+                available_mib: usable >> 20,
+                when: if self.opts.scratch_keep_free > 0 {
+                    "are free beyond what --scratch-keep-free keeps"
+                } else {
+                    "are free"
+                },
+            });
+        }
+        Ok(())
+    }
+
+    /// A write to the scratch or store disk failed: a full disk is a budget refusal, anything
+    /// else an I/O error naming the folder.
+    fn disk_fault(&self, e: std::io::Error, dir: &Path) -> Error {
+        if e.kind() == std::io::ErrorKind::StorageFull {
+            Error::ScratchFull {
+                path: self.input.path.clone(),
+                dir: dir.to_path_buf(),
+                needed_mib: 0,
+                available_mib: 0,
+                when: "were left when the disk filled up mid-build (the estimate was short)",
+            }
+        } else {
+            Error::io(dir, "write in", e)
+        }
+    }
+
+    /// Finish either build: sort and merge in memory, or merge the runs into a store file and
+    /// map it.
+    pub(super) fn finish_sink(
+        self,
+        sink: Sink,
+        ids: NodeIds,
+        id_kind: IdKind,
+        scanned: Scanned,
+    ) -> Result<Graph> {
+        match sink {
+            Sink::Memory(filler) => self.finish(filler, ids, id_kind, scanned),
+            Sink::Disk { spiller, expected } => {
+                self.finish_on_disk(spiller, expected, ids, id_kind, scanned)
+            }
+        }
+    }
+
+    fn finish_on_disk(
+        mut self,
+        spiller: Spiller,
+        expected: u64,
+        ids: NodeIds,
+        id_kind: IdKind,
+        scanned: Scanned,
+    ) -> Result<Graph> {
+        let scratch_dir = spiller.scratch().to_path_buf();
+        if let Some(e) = spiller.take_failure() {
+            return Err(self.disk_fault(e, &scratch_dir));
+        }
+        if spiller.keys() != expected {
+            return Err(Error::Output {
+                path: self.input.path.clone(),
+                problem: format!(
+                    "the second pass wrote {} adjacency entries where the first counted {expected}; \
+                     was the input modified while being read?",
+                    spiller.keys()
+                ),
+            });
+        }
+        // Without a destination the store lives in its own scratch folder only until it is
+        // mapped: removing a mapped file keeps its pages readable (POSIX unlink semantics).
+        let (store_path, holder) = match self.dest {
+            Some(d) => (d.to_path_buf(), None),
+            None => {
+                let parent = self.scratch_parent();
+                let s = Scratch::create(&parent).map_err(|e| Error::io(&parent, "create in", e))?;
+                (s.path().join("graph.plumb"), Some(s))
+            }
+        };
+        let n = ids.len();
+        let mut w = StoreWriter::create(&store_path, n as u64)?;
+        let budget = self.opts.memory_budget;
+        let spare = budget.saturating_sub((n as u64 + 1) * BYTES_PER_NODE);
+        // Read buffers share what the per-node arrays leave, 4 KiB to 8 MiB each.
+        let runs_estimate = (expected / spiller.keys_per_buffer.max(1) as u64 + 2 * 64).max(1);
+        let read_keys = (spare / 2 / 8 / runs_estimate).clamp(512, 1 << 20) as usize;
+        let merged = spiller
+            .merge(n, w.targets(), read_keys, self.progress)
+            .map_err(|e| self.disk_fault(e, &scratch_dir))?;
+        self.stage_done(StageName::SortAndMerge);
+        let on_disk = DiskBuild {
+            scratch: scratch_dir.display().to_string(),
+            runs: merged.runs,
+            run_bytes: merged.run_bytes,
+            memory_budget: budget,
+        };
+        let intake = self.intake(
+            &merged.offsets,
+            merged.directed_pairs,
+            id_kind,
+            scanned,
+            Some(on_disk),
+        )?;
+        w.finish(&merged.offsets, &ids, &intake)?;
+        drop(merged);
+        drop(ids);
+        let mut g = file::open(&store_path)?;
+        // The store is a means here, not the input: report the text it came from.
+        g.intake = intake;
+        drop(holder);
+        Ok(g)
+    }
+}
+
+fn parent_of(p: &Path) -> PathBuf {
+    match p.parent() {
+        Some(d) if !d.as_os_str().is_empty() => d.to_path_buf(),
+        _ => PathBuf::from("."),
+    }
+}
+
+fn same_device(a: &Path, b: &Path) -> bool {
+    #[cfg(unix)]
+    {
+        use std::os::unix::fs::MetadataExt;
+        match (std::fs::metadata(a), std::fs::metadata(b)) {
+            (Ok(x), Ok(y)) => x.dev() == y.dev(),
+            _ => false,
+        }
+    }
+    #[cfg(not(unix))]
+    {
+        let _ = (a, b);
+        false
+    }
+}
