@@ -25,7 +25,7 @@ pub struct Source<'a> {
 
 /// Drop the whole pages of `data[a..b]` from this process's resident set. Safe for a read-only
 /// file map: a later read faults the same bytes back in from the file.
-fn release(map: Option<&memmap2::Mmap>, a: usize, b: usize) {
+pub(crate) fn release(map: Option<&memmap2::Mmap>, a: usize, b: usize) {
     const PAGE: usize = 4096;
     let Some(map) = map else { return };
     let (start, end) = (a.next_multiple_of(PAGE), b / PAGE * PAGE);

@@ -341,8 +341,10 @@ pub fn decode_chunks(
             }
         }
         Compression::Zstd => {
-            let frames = zstd_frames(data)?;
+            let frames = zstd_frames_releasing(data, consumed)?;
             info.frames = frames.len() as u64;
+            // Decoding touches each frame again only when its turn comes.
+            consumed(0, data.len());
             if frames.len() == 1 {
                 let (start, end) = frames[0];
                 let dec =
@@ -428,9 +430,24 @@ fn stream_into(
 
 /// Byte ranges of the zstd frames in `data`, checked for truncation before anything is decoded.
 pub fn zstd_frames(data: &[u8]) -> Result<Vec<(usize, usize)>, StreamFault> {
+    zstd_frames_releasing(data, &|_, _| {})
+}
+
+/// [`zstd_frames`], telling `consumed` of every 64 MiB walked: finding a frame's end reads each
+/// of its block headers, which would otherwise leave much of a mapped file resident.
+fn zstd_frames_releasing(
+    data: &[u8],
+    consumed: &dyn Fn(usize, usize),
+) -> Result<Vec<(usize, usize)>, StreamFault> {
+    const STEP: usize = 64 << 20;
     let mut frames = Vec::new();
     let mut pos = 0;
+    let mut released = 0;
     while pos < data.len() {
+        if pos - released >= STEP {
+            consumed(released, pos);
+            released = pos;
+        }
         let rest = &data[pos..];
         let len = zstd::zstd_safe::find_frame_compressed_size(rest).map_err(|code| {
             let name = zstd::zstd_safe::get_error_name(code);

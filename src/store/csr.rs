@@ -40,6 +40,12 @@ impl Csr {
         Csr::from_parts(offsets.into(), targets.into())
     }
 
+    /// Drop a mapped store's pages from the resident set (see [`Slab::release_pages`]).
+    pub(crate) fn release_pages(&self) {
+        self.offsets.release_pages();
+        self.targets.release_pages();
+    }
+
     /// Nodes.
     #[inline]
     pub fn node_count(&self) -> usize {

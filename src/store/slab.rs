@@ -30,6 +30,24 @@ impl<T: Pod> Slab<T> {
         })
     }
 
+    /// Drop a mapped slab's pages from the resident set (they stay in the page cache and
+    /// fault back in when read); nothing for an owned slab.
+    pub fn release_pages(&self) {
+        #[cfg(unix)]
+        if let Slab::Mapped { map, start, len } = self {
+            let page = 4096;
+            let a = start.next_multiple_of(page);
+            let b = (start + len * std::mem::size_of::<T>()) / page * page;
+            if b > a {
+                // SAFETY: the map is read-only and file-backed: MADV_DONTNEED discards clean
+                // views only, refetched unchanged from the file when touched again.
+                let _ = unsafe {
+                    map.unchecked_advise_range(memmap2::UncheckedAdvice::DontNeed, a, b - a)
+                };
+            }
+        }
+    }
+
     pub fn is_mapped(&self) -> bool {
         matches!(self, Slab::Mapped { .. })
     }

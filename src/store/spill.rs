@@ -112,6 +112,13 @@ pub(crate) struct SpillBuf {
 impl SpillBuf {
     /// Add the edge lines of `batch` (dense indices, no self-loops); false once writing failed.
     pub(crate) fn edges(&mut self, batch: &[(u32, u32)], sp: &Spiller) -> bool {
+        if self.front.capacity() == 0 {
+            // Exactly the budgeted size: growth by doubling could take nearly twice that.
+            self.front
+                .reserve_exact(sp.keys_per_buffer + batch.len().max(4096));
+            self.back
+                .reserve_exact(sp.keys_per_buffer + batch.len().max(4096));
+        }
         for &(u, v) in batch {
             self.front.push(key(u, v));
             self.back.push(key(v, u));

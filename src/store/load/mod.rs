@@ -639,7 +639,8 @@ fn peek<'a>(src: Source<'a>, path: &Path) -> Result<Cow<'a, [u8]>> {
         src.compression,
         PEEK,
         usize::MAX,
-        &|_, _| {},
+        // Finding the frames walks the whole file; let its pages go as it does.
+        &|a, b| pieces::release(src.map, a, b),
         &mut |c| {
             head.extend_from_slice(&c.bytes);
             head.len() < PEEK

@@ -58,8 +58,9 @@ impl Sink {
     }
 }
 
-/// Bytes kept back from the run buffers for decoding and parsing.
-const RESERVE: u64 = 64 << 20;
+/// Bytes kept back from the run buffers for decoding and parsing (pieces in flight, decoder
+/// state, the pieces' parsed batches); a quarter of smaller budgets.
+const RESERVE: u64 = 256 << 20;
 
 impl Loader<'_> {
     /// Choose the fill's destination from the raw degrees: memory when the adjacency under
@@ -88,7 +89,7 @@ impl Loader<'_> {
             per_node,
         )?;
         let budget = self.opts.memory_budget;
-        let reserve = RESERVE.min(budget / 8);
+        let reserve = RESERVE.min(budget / 4);
         let spare = budget.saturating_sub(per_node + reserve);
         // Each worker holds a front and a back buffer of 8-byte keys.
         let keys_per_buffer = (spare / (self.threads as u64 * 2 * 8)).max(1024) as usize;
@@ -236,7 +237,10 @@ impl Loader<'_> {
         w.finish(&merged.offsets, &ids, &intake)?;
         drop(merged);
         drop(ids);
-        let mut g = file::open(&store_path)?;
+        let mut g = file::open_fresh(&store_path)?;
+        // Checking the offsets read them; let those pages go so the analyses fault in only
+        // what they touch.
+        g.csr.release_pages();
         // The store is a means here, not the input: report the text it came from.
         g.intake = intake;
         drop(holder);
