@@ -229,13 +229,13 @@ impl Spiller {
         self.keys.load(Relaxed)
     }
 
-    /// Merge every run into `out` as the targets of a graph on `n` nodes; each run is read
-    /// through a buffer of `read_keys` keys and deleted once merged.
+    /// Merge every run into `out` as the targets of a graph on `n` nodes; the runs open at once
+    /// share `read_bytes` of read buffers (4 KiB to 8 MiB each), and each is deleted once merged.
     pub(crate) fn merge(
         self,
         n: usize,
         out: &mut dyn Write,
-        read_keys: usize,
+        read_bytes: u64,
         progress: &dyn Progress,
     ) -> std::io::Result<Merged> {
         if let Some(e) = self.take_failure() {
@@ -245,6 +245,8 @@ impl Spiller {
         let total: u64 = runs.iter().map(|r| r.keys).sum();
         let run_bytes = total * 8;
         let written = runs.len() as u64;
+        let open_at_once = runs.len().clamp(1, FAN_IN) as u64;
+        let read_keys = (read_bytes / 8 / open_at_once).clamp(512, 1 << 20) as usize;
         // More runs than files open at once: merge groups of one kind into longer runs first.
         while runs.len() > FAN_IN {
             progress.stage("merging runs (a pass)", None, Unit::Items);
@@ -351,7 +353,7 @@ impl KWay {
     fn open(runs: &[Run], read_keys: usize) -> std::io::Result<Self> {
         let mut readers = runs
             .iter()
-            .map(|r| RunReader::open(r, read_keys.max(512)))
+            .map(|r| RunReader::open(r, read_keys))
             .collect::<std::io::Result<Vec<_>>>()?;
         let mut heap = BinaryHeap::with_capacity(readers.len());
         for (i, r) in readers.iter_mut().enumerate() {
@@ -446,7 +448,7 @@ mod tests {
         assert!(sp.spill(&mut a) && sp.spill(&mut b));
         assert_eq!(sp.keys(), 8);
         let mut out = Vec::new();
-        let m = sp.merge(3, &mut out, 1, &crate::progress::Quiet).unwrap();
+        let m = sp.merge(3, &mut out, 0, &crate::progress::Quiet).unwrap();
         let targets: Vec<u32> = bytemuck::cast_slice(&out).to_vec();
         assert_eq!(m.offsets, vec![0, 1, 3, 4]);
         assert_eq!(targets, vec![1, 0, 2, 1]);

@@ -147,14 +147,15 @@ impl Loader<'_> {
 
     /// A write to the scratch or store disk failed: a full disk is a budget refusal, anything
     /// else an I/O error naming the folder.
-    fn disk_fault(&self, e: std::io::Error, dir: &Path) -> Error {
+    fn disk_fault(&self, e: std::io::Error, dir: &Path, keys: u64) -> Error {
         if e.kind() == std::io::ErrorKind::StorageFull {
             Error::ScratchFull {
                 path: self.input.path.clone(),
                 dir: dir.to_path_buf(),
-                needed_mib: 0,
+                needed_mib: (keys * 12).div_ceil(1 << 20),
                 available_mib: 0,
-                when: "were left when the disk filled up mid-build (the estimate was short)",
+                when: "were left when the disk filled up mid-build (something else took the \
+                       space checked at the start)",
             }
         } else {
             Error::io(dir, "write in", e)
@@ -188,7 +189,7 @@ impl Loader<'_> {
     ) -> Result<Graph> {
         let scratch_dir = spiller.scratch().to_path_buf();
         if let Some(e) = spiller.take_failure() {
-            return Err(self.disk_fault(e, &scratch_dir));
+            return Err(self.disk_fault(e, &scratch_dir, expected));
         }
         if spiller.keys() != expected {
             return Err(Error::Output {
@@ -214,12 +215,10 @@ impl Loader<'_> {
         let mut w = StoreWriter::create(&store_path, n as u64)?;
         let budget = self.opts.memory_budget;
         let spare = budget.saturating_sub((n as u64 + 1) * BYTES_PER_NODE);
-        // Read buffers share what the per-node arrays leave, 4 KiB to 8 MiB each.
-        let runs_estimate = (expected / spiller.keys_per_buffer.max(1) as u64 + 2 * 64).max(1);
-        let read_keys = (spare / 2 / 8 / runs_estimate).clamp(512, 1 << 20) as usize;
+        // The runs' read buffers share half of what the per-node arrays leave.
         let merged = spiller
-            .merge(n, w.targets(), read_keys, self.progress)
-            .map_err(|e| self.disk_fault(e, &scratch_dir))?;
+            .merge(n, w.targets(), spare / 2, self.progress)
+            .map_err(|e| self.disk_fault(e, &scratch_dir, expected))?;
         self.stage_done(StageName::SortAndMerge);
         let on_disk = DiskBuild {
             scratch: scratch_dir.display().to_string(),
