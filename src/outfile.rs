@@ -56,7 +56,7 @@ pub fn remove_leftovers() -> usize {
             if p.is_dir() {
                 // A worker may have been creating a file as the flag went up: try again
                 // briefly until the folder is gone.
-                (0..20).any(|_| {
+                (0..100).any(|_| {
                     let gone = std::fs::remove_dir_all(p).is_ok() || !p.exists();
                     if !gone {
                         std::thread::sleep(std::time::Duration::from_millis(10));

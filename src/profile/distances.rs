@@ -206,6 +206,17 @@ struct Estimated {
     method: String,
 }
 
+/// Bytes a HyperBall run holds: its two register arrays plus about 10 bytes per node of
+/// per-node state (estimates, change flags).
+fn ball_memory(n: u64, log2_registers: u8) -> u64 {
+    crate::estimate::hyperball::memory_bytes(n as usize, log2_registers) + 10 * n
+}
+
+/// Whether `bytes` fit in 90% of the memory available now (unknown availability: assume so).
+fn fits(bytes: u64, available: Option<u64>) -> bool {
+    available.is_none_or(|a| bytes <= a / 10 * 9)
+}
+
 /// Distances of the connected `sub` by the sampled-source or HyperBall estimator, whichever the
 /// options ask for or is predicted cheaper for the requested precision.
 fn estimate_distances(
@@ -229,6 +240,11 @@ fn estimate_distances(
         opts.rates.ball_bytes,
         opts.threads,
     );
+    // HyperBall's two register arrays must fit beside the graph: the planner never picks it
+    // into an out-of-memory kill (at 1e8 nodes they take 12.8 GB).
+    let ball_bytes = ball_memory(sn, opts.ball.log2_registers);
+    let available = crate::store::limits::available_memory();
+    let ball_fits = fits(ball_bytes, available);
     let mut pilot = None;
     let use_ball = match opts.distance_estimator {
         DistanceEstimator::Ball => true,
@@ -253,7 +269,7 @@ fn estimate_distances(
                 )
             };
             pilot = Some((p, src_secs));
-            ball_secs < src_secs
+            ball_secs < src_secs && ball_fits
         }
     };
     let mut reason = why(
@@ -274,6 +290,14 @@ fn estimate_distances(
             secs(chosen_secs),
             secs(rival_secs)
         );
+        if !ball_fits {
+            reason += &format!(
+                " (HyperBall's registers, {:.1} GiB, would not fit the {:.1} GiB of memory \
+                 available)",
+                ball_bytes as f64 / (1u64 << 30) as f64,
+                available.unwrap_or(0) as f64 / (1u64 << 30) as f64
+            );
+        }
     }
     let pilot_secs = pilot.as_ref().map(|(_, s)| *s);
     let ball = if use_ball {
@@ -383,5 +407,20 @@ fn by_sources(
         sources: Some(e.sources),
         registers: None,
         counter_rse: None,
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn hyperball_is_not_planned_beyond_the_memory_available() {
+        // 1e8 nodes with 64 registers: two arrays of 6.4 GB plus per-node state (arithmetic).
+        let bytes = ball_memory(100_000_000, 6);
+        assert_eq!(bytes, 13_800_000_000);
+        assert!(!fits(bytes, Some(8 << 30)));
+        assert!(fits(bytes, Some(24 << 30)));
+        assert!(fits(bytes, None));
     }
 }

@@ -181,6 +181,16 @@ impl Spiller {
                 continue;
             }
             keys.sort_unstable();
+            // An interrupt may have come during the sort: its handler is removing the folder,
+            // so no new file may appear in it.
+            if crate::outfile::interrupted() {
+                keys.clear();
+                self.failure
+                    .lock()
+                    .unwrap_or_else(|p| p.into_inner())
+                    .get_or_insert(std::io::ErrorKind::Interrupted.into());
+                return false;
+            }
             let path = self
                 .scratch
                 .path()
@@ -313,6 +323,9 @@ impl Spiller {
                     continue;
                 }
                 let is_front = group[0].front;
+                if crate::outfile::interrupted() {
+                    return Err(std::io::ErrorKind::Interrupted.into());
+                }
                 let path = self
                     .scratch
                     .path()
