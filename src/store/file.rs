@@ -123,15 +123,14 @@ impl Header {
 }
 
 fn checksum(header: &[u8], body: &[u8]) -> u64 {
-    let digests: Vec<u8> = body
-        .par_chunks(BLOCK)
-        .map(xxh3_64)
-        .collect::<Vec<u64>>()
-        .iter()
-        .flat_map(|d| d.to_le_bytes())
-        .collect();
+    let digests: Vec<u64> = body.par_chunks(BLOCK).map(xxh3_64).collect();
+    seal(header, &digests)
+}
+
+/// The checksum from the header's first 112 bytes and the body's block digests, in order.
+fn seal(header: &[u8], digests: &[u64]) -> u64 {
     let mut all = header[..112].to_vec();
-    all.extend_from_slice(&digests);
+    all.extend(digests.iter().flat_map(|d| d.to_le_bytes()));
     xxh3_64(&all)
 }
 
@@ -152,11 +151,8 @@ fn file_checksum(file: &std::fs::File, header: &[u8], len: u64) -> std::io::Resu
             },
         )
         .collect();
-    let mut all = header[..112].to_vec();
-    for d in digests {
-        all.extend_from_slice(&d?.to_le_bytes());
-    }
-    Ok(xxh3_64(&all))
+    let digests = digests.into_iter().collect::<std::io::Result<Vec<u64>>>()?;
+    Ok(seal(header, &digests))
 }
 
 #[cfg(unix)]

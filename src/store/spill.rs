@@ -166,10 +166,7 @@ impl Spiller {
     /// Sort and write a worker's buffers as two runs; false (and the error kept) on failure.
     pub(crate) fn spill(&self, buf: &mut SpillBuf) -> bool {
         if crate::outfile::interrupted() {
-            self.failure
-                .lock()
-                .unwrap_or_else(|p| p.into_inner())
-                .get_or_insert(std::io::Error::from(std::io::ErrorKind::Interrupted));
+            self.fail(std::io::ErrorKind::Interrupted.into());
         }
         if self.failed() {
             buf.front.clear();
@@ -185,10 +182,7 @@ impl Spiller {
             // so no new file may appear in it.
             if crate::outfile::interrupted() {
                 keys.clear();
-                self.failure
-                    .lock()
-                    .unwrap_or_else(|p| p.into_inner())
-                    .get_or_insert(std::io::ErrorKind::Interrupted.into());
+                self.fail(std::io::ErrorKind::Interrupted.into());
                 return false;
             }
             let path = self
@@ -198,10 +192,7 @@ impl Spiller {
             let written = File::create(&path)
                 .and_then(|mut f| f.write_all(bytemuck::cast_slice(keys.as_slice())));
             if let Err(e) = written {
-                self.failure
-                    .lock()
-                    .unwrap_or_else(|p| p.into_inner())
-                    .get_or_insert(e);
+                self.fail(e);
                 keys.clear();
                 return false;
             }
@@ -217,6 +208,14 @@ impl Spiller {
             keys.clear();
         }
         true
+    }
+
+    /// Keep the first error; later ones follow from it.
+    fn fail(&self, e: std::io::Error) {
+        self.failure
+            .lock()
+            .unwrap_or_else(|p| p.into_inner())
+            .get_or_insert(e);
     }
 
     fn failed(&self) -> bool {
