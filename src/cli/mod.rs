@@ -343,7 +343,7 @@ fn pack(input: &InputArgs, out: &Path, bars: &bars::Bars) -> Result<(), Error> {
     let (g, bytes) = plumb::store::load::pack(&input.input, out, &input.options(), bars)?;
     print!("{}", show::intake_text(&g, "pack"));
     println!(
-        "  {:<11}{} ({}) in {:.2} s",
+        "  {:<11}{} ({}); {:.2} s from reading to the store on disk",
         "wrote",
         out.display(),
         show::bytes(bytes),
