@@ -116,11 +116,16 @@ fn main() {
                 );
             }
             let pass = one_pass(&g.csr);
+            let scatter = plumb::exact::cost::scatter_seconds(&g.csr, opts.threads);
+            let steps = plumb::exact::cost::triangle_steps(&g.csr);
             println!(
-                "{:<22} {:>11} one pass {:.2} s · degrees {:.2} s · components {:.2} s",
+                "{:<22} {:>11} one pass {:.2} s · probe {:.2} ns a step, {:.3e} listing steps · \
+                 degrees {:.2} s · components {:.2} s",
                 name,
                 g.csr.edge_count(),
                 pass,
+                scatter * 1e9,
+                steps,
                 took(&[StageName::Degrees]),
                 took(&[StageName::Components])
             );

@@ -467,7 +467,8 @@ fn parse_size_or_zero(s: &str) -> Result<u64, plumb::error::ParamError> {
 
 #[derive(ValueEnum, Clone, Copy, Debug)]
 pub(crate) enum BuildArg {
-    /// In memory when it fits --memory-budget, else on disk.
+    /// In memory when it fits --memory-budget and is under 3 GiB, else on disk (when the scratch
+    /// disk has room; larger graphs build faster and leaner there).
     Auto,
     /// In memory only.
     Memory,

@@ -190,8 +190,15 @@ fn run_draws(
 struct WedgeSampler<'g> {
     g: &'g Csr,
     cum: Vec<u128>,
+    /// The last cumulative count of each block of [`CENTRE_BLOCK`] nodes: a search of this small
+    /// table, then of one block, finds the same centre as a search of `cum`, with a few cache
+    /// misses instead of one per level (at 1e8 nodes `cum` is 1.6 GB).
+    coarse: Vec<u128>,
     wedges: u128,
 }
+
+/// Nodes per block of the two-level search (a block of counts is 1 KiB).
+const CENTRE_BLOCK: usize = 64;
 
 impl<'g> WedgeSampler<'g> {
     fn new(g: &'g Csr) -> Self {
@@ -201,17 +208,27 @@ impl<'g> WedgeSampler<'g> {
             acc += crate::exact::clustering::wedges_at(g.degree(v));
             cum.push(acc);
         }
+        let coarse = cum.chunks(CENTRE_BLOCK).map(|b| b[b.len() - 1]).collect();
         WedgeSampler {
             g,
             cum,
+            coarse,
             wedges: acc,
         }
     }
 
+    /// The centre of wedge number `x`: the first node whose cumulative count exceeds it.
+    fn centre(&self, x: u128) -> usize {
+        // The first block whose last count exceeds x holds that node (counts never decrease).
+        let b = self.coarse.partition_point(|&w| w <= x);
+        let lo = b * CENTRE_BLOCK;
+        let hi = (lo + CENTRE_BLOCK).min(self.cum.len());
+        lo + self.cum[lo..hi].partition_point(|&w| w <= x)
+    }
+
     fn draw(&self, rng: &mut ChaCha8Rng) -> bool {
         let x = random_below(rng, self.wedges);
-        let v = self.cum.partition_point(|&w| w <= x);
-        closes(self.g, v as u32, rng)
+        closes(self.g, self.centre(x) as u32, rng)
     }
 }
 
@@ -486,6 +503,23 @@ mod tests {
                 (x.mean.value() - e.mean.value()).abs() < 0.01,
                 "{x:?} {e:?}"
             );
+        }
+    }
+
+    /// The two-level search finds the centre a search of all the counts finds, for every
+    /// wedge number at block edges and between them.
+    #[test]
+    fn two_level_search_equals_one_search() {
+        let g = crate::models::generate::preferential_attachment(1000, 3, 2);
+        let s = WedgeSampler::new(&g);
+        let mut xs: Vec<u128> = s
+            .cum
+            .iter()
+            .flat_map(|&c| [c.saturating_sub(1), c])
+            .collect();
+        xs.extend((0..5000u128).map(|i| i * s.wedges / 5000));
+        for x in xs.into_iter().filter(|&x| x < s.wedges) {
+            assert_eq!(s.centre(x), s.cum.partition_point(|&w| w <= x), "wedge {x}");
         }
     }
 }

@@ -16,13 +16,9 @@ pub struct Rates {
     pub ball_bytes: f64,
     /// Wedge samples drawn and tested.
     pub wedges: f64,
-    /// Forward triangle listing: seconds per step of [`triangle_steps`] while the oriented
-    /// graph fits in cache.
-    pub triangle_step_seconds: f64,
-    /// Further seconds per step when it does not (scaled by the share that misses).
-    pub triangle_miss_seconds: f64,
-    /// The cache the interpolation assumes, in bytes.
-    pub cache_bytes: f64,
+    /// Forward triangle listing: seconds per step of [`triangle_steps`], as a multiple of the
+    /// graph's measured [`scatter_seconds`].
+    pub triangle_step_per_probe: f64,
 }
 
 /// Measured with `cargo bench --bench estimate` on the reference machine (2-core virtual Xeon).
@@ -31,21 +27,79 @@ pub const REFERENCE_RATES: Rates = Rates {
     bfs_words: 2.2e8,
     ball_bytes: 1.3e9,
     wedges: 2.0e6,
-    // Fitted to forward listing on Watts–Strogatz, G(n,m) and attachment graphs of 5M and 50M
-    // edges (`cargo bench --bench planner`): about 10 ns a step at 5M edges, 22 ns at 50M.
-    triangle_step_seconds: 3.4e-9,
-    triangle_miss_seconds: 2.0e-8,
-    cache_bytes: 16.0 * 1024.0 * 1024.0,
+    // Measured seconds per listing step over the probe on G(n,m) and attachment graphs of 5M
+    // and 50M edges (`cargo bench --bench planner`): 0.61–1.05, so 0.65.
+    triangle_step_per_probe: 0.65,
 };
 
 /// Predicted seconds of forward triangle listing on `g`: its exact steps ([`triangle_steps`])
-/// at a per-step cost that grows with the share of the oriented graph and the per-thread marks
-/// (4 bytes per entry and per node) that cannot stay in cache.
-pub fn triangle_seconds(g: &Csr, rates: &Rates, threads: usize) -> f64 {
-    let working_set = 4.0 * (g.edge_count() as f64 + g.node_count() as f64);
-    let missing = (1.0 - rates.cache_bytes / working_set.max(1.0)).max(0.0);
-    let per_step = rates.triangle_step_seconds + missing * rates.triangle_miss_seconds;
-    triangle_steps(g) * per_step / threads.max(1) as f64
+/// at the cost per step that `probe` ([`scatter_seconds`] on `g`) measured on this machine.
+pub fn triangle_seconds(g: &Csr, rates: &Rates, threads: usize, probe: f64) -> f64 {
+    triangle_steps(g) * probe * rates.triangle_step_per_probe / threads.max(1) as f64
+}
+
+/// Predicted seconds of `draws` wedge or node draws on `g`: the measured rate while the store
+/// is near the size it was measured at (50M edges, 0.4 GB), slower in proportion to the store
+/// beyond it, up to 5x (each draw is a few scattered reads, and from about 1.6 GB every one of
+/// them misses cache and TLB: 4.9–5.2x measured at 200M edges, 4.6x at 1e9), plus the sampler's
+/// passes over the nodes (cumulative wedge counts, degree bins: about 50 ns a node, measured at
+/// 4e7 nodes). Fitted with `cargo bench --bench planner` here; no source.
+pub fn sampling_seconds(g: &Csr, draws: f64, rates: &Rates, threads: usize) -> f64 {
+    let store = 8.0 * (g.edge_count() as f64 + g.node_count() as f64);
+    let slowdown = (store / 4.0e8).clamp(1.0, 5.0);
+    seconds(draws, rates.wedges, threads) * slowdown + g.node_count() as f64 * 5.0e-8
+}
+
+/// Seconds one thread spends per step of forward triangle listing on `g`, sampled while
+/// `threads` threads probe at once: from a random edge end v (so v is drawn as the listing reaches
+/// it, by degree), walk v's list and, for each later-ranked neighbour w, read w's place in a
+/// node-sized array, as the listing's mark test does. It measures this machine, this graph's size
+/// (caches, TLB reach, pages mapped from disk) and its locality (a lattice's neighbours sit close,
+/// a random graph's do not), which no fixed rate can know. The fastest of three rounds (timing
+/// noise only adds); about a tenth of a second at 1e9 edges.
+pub fn scatter_seconds(g: &Csr, threads: usize) -> f64 {
+    (0..3)
+        .map(|_| scatter_round(g, threads))
+        .fold(f64::INFINITY, f64::min)
+}
+
+fn scatter_round(g: &Csr, threads: usize) -> f64 {
+    use rayon::prelude::*;
+    // Edge ends visited per thread, and the most of one list walked (hubs would dominate).
+    const ENDS: usize = 1 << 14;
+    const LIST_CAP: usize = 256;
+    let t = g.targets();
+    let o = g.offsets();
+    if t.is_empty() {
+        return 0.0;
+    }
+    let len = t.len() as u128;
+    let started = std::time::Instant::now();
+    let (sum, steps) = (0..threads.max(1) as u64)
+        .into_par_iter()
+        .map(|i| {
+            // xorshift64: a fixed, seeded sequence; which ends are drawn does not matter.
+            let mut x = 0x9E37_79B9_7F4A_7C15u64 ^ (i + 1).wrapping_mul(0xBF58_476D_1CE4_E5B9);
+            let (mut s, mut steps) = (0u64, 0u64);
+            for _ in 0..ENDS {
+                x ^= x << 13;
+                x ^= x >> 7;
+                x ^= x << 17;
+                let v = t[((x as u128 * len) >> 64) as usize] as usize;
+                let dv = o[v + 1] - o[v];
+                let list = &t[o[v] as usize..o[v + 1] as usize];
+                for &w in list.iter().take(LIST_CAP) {
+                    let dw = o[w as usize + 1] - o[w as usize];
+                    s = s.wrapping_add(((dw, w as usize) > (dv, v)) as u64);
+                }
+                steps += list.len().min(LIST_CAP) as u64;
+            }
+            (s, steps)
+        })
+        .reduce(|| (0, 0), |a, b| (a.0.wrapping_add(b.0), a.1 + b.1));
+    std::hint::black_box(sum);
+    let per_thread = steps as f64 / threads.max(1) as f64;
+    started.elapsed().as_secs_f64() / per_thread.max(1.0)
 }
 
 /// Work of forward triangle listing: each node's list is merged against neighbours whose

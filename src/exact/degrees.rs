@@ -115,14 +115,21 @@ fn assortativity(g: &Csr) -> Option<f64> {
     let o = g.offsets();
     let t = g.targets();
     let n = g.node_count();
+    // A compact degree array: the scattered reads below then touch 4 bytes a node, not two
+    // 8-byte offsets (at 1e8 nodes, 400 MB instead of 800 MB).
+    let deg: Vec<u32> = (0..n)
+        .into_par_iter()
+        .map(|u| (o[u + 1] - o[u]) as u32)
+        .collect();
     // Over directed edge ends (u -> v): sum of d_u d_v, sum of d_u, sum of d_u^2.
     let (s_jk, s_j, s_jj) = (0..n)
         .into_par_iter()
         .map(|u| {
-            let du = o[u + 1] - o[u];
+            let du = deg[u] as u64;
             let mut jk = 0u128;
             for &v in &t[o[u] as usize..o[u + 1] as usize] {
-                jk += (du as u128) * ((o[v as usize + 1] - o[v as usize]) as u128);
+                // Both below 2^32, so the product fits 64 bits.
+                jk += (du * deg[v as usize] as u64) as u128;
             }
             // Node u is the tail of du edge ends, each with degree du.
             (jk, (du as u128) * (du as u128), (du as u128).pow(3))

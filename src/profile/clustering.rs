@@ -6,7 +6,7 @@
 use crate::estimate::wedges;
 use crate::estimate::wedges::Margin;
 use crate::exact::clustering::{self, ClusteringStats};
-use crate::exact::cost::{self, seconds};
+use crate::exact::cost;
 use crate::exact::triangles;
 use crate::profile::ProfileOptions;
 use crate::profile::clock::Clock;
@@ -31,7 +31,9 @@ pub(crate) fn run(
     read_seconds: f64,
     clock: &mut Clock,
 ) -> ClusteringOutcome {
-    let predicted = cost::triangle_seconds(csr, &opts.rates, opts.threads);
+    // A listing step's cost depends on the machine, the graph's size and its locality: measure.
+    let scatter = cost::scatter_seconds(csr, opts.threads);
+    let predicted = cost::triangle_seconds(csr, &opts.rates, opts.threads, scatter);
     let allowance = opts.exact_seconds.max(read_seconds);
     let mut sampling = None;
     let exact = match opts.clustering {
@@ -139,5 +141,5 @@ fn sampling_seconds(csr: &Csr, opts: &ProfileOptions) -> f64 {
         .unwrap_or(0);
     let bins = 32 - max_degree.leading_zeros() as u64;
     let work = 2 * draws + bins * opts.bin_margin.pilot(opts.level);
-    seconds(work as f64, opts.rates.wedges, opts.threads)
+    cost::sampling_seconds(csr, work as f64, &opts.rates, opts.threads)
 }

@@ -80,6 +80,9 @@ pub enum StageName {
     /// Sampled reference graphs for the small-world comparison.
     #[serde(rename = "reference graphs")]
     ReferenceGraphs,
+    /// HyperLogLog sketches of the node and edge ids, kept in JSON reports for churn.
+    #[serde(rename = "id sketch")]
+    IdSketch,
 }
 
 impl StageName {
@@ -99,6 +102,7 @@ impl StageName {
             StageName::SampledDistances => "sampled distances",
             StageName::HyperBall => "HyperBall",
             StageName::ReferenceGraphs => "reference graphs",
+            StageName::IdSketch => "id sketch",
         }
     }
 

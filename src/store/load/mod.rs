@@ -57,7 +57,8 @@ pub enum HeaderChoice {
 /// Where the adjacency is built.
 #[derive(Debug, Clone, Copy, PartialEq, Eq, Default)]
 pub enum BuildChoice {
-    /// In memory when it fits the memory budget, else on disk.
+    /// In memory when it fits the memory budget and is under 3 GiB, else on disk (when the
+    /// scratch disk has room: larger graphs build faster and leaner there).
     #[default]
     Auto,
     /// In memory only: a build over the budget stops with [`Error::OverBudget`].
