@@ -163,11 +163,7 @@ fn batch<const EACH: bool>(
             *reached += new.count_ones() as u64;
             *any |= new;
             if EACH {
-                let mut bits = new;
-                while bits != 0 {
-                    each[bits.trailing_zeros() as usize] += 1;
-                    bits &= bits - 1;
-                }
+                for_each_bit(new, |i| each[i] += 1);
             }
         };
         let push = list.as_ref().is_some_and(|l| {
@@ -241,17 +237,22 @@ fn batch<const EACH: bool>(
         if EACH {
             per_source.push(each);
         }
-        let mut bits = any;
-        while bits != 0 {
-            ecc[bits.trailing_zeros() as usize] = level;
-            bits &= bits - 1;
-        }
+        for_each_bit(any, |i| ecc[i] = level);
         std::mem::swap(frontier, next);
         // `next` now holds the old frontier, whose nonzero words `list` names.
         next_list = list;
         list = found;
     }
     (counts, ecc)
+}
+
+/// Call `f` with the index of every set bit of `bits`, lowest first.
+#[inline]
+fn for_each_bit(mut bits: u64, mut f: impl FnMut(usize)) {
+    while bits != 0 {
+        f(bits.trailing_zeros() as usize);
+        bits &= bits - 1;
+    }
 }
 
 /// The pull-only batch: every level scans every node not yet reached from all sources. The
@@ -302,11 +303,7 @@ fn batch_pull<const EACH: bool>(
                 reached += new.count_ones() as u64;
                 any |= new;
                 if EACH {
-                    let mut bits = new;
-                    while bits != 0 {
-                        each[bits.trailing_zeros() as usize] += 1;
-                        bits &= bits - 1;
-                    }
+                    for_each_bit(new, |i| each[i] += 1);
                 }
             }
         }
@@ -317,11 +314,7 @@ fn batch_pull<const EACH: bool>(
         if EACH {
             per_source.push(each);
         }
-        let mut bits = any;
-        while bits != 0 {
-            ecc[bits.trailing_zeros() as usize] = level;
-            bits &= bits - 1;
-        }
+        for_each_bit(any, |i| ecc[i] = level);
         std::mem::swap(frontier, next);
     }
     (counts, ecc)
