@@ -20,20 +20,21 @@ use crate::profile::{DiameterFigures, Distances, EstimatedDistances, ProfileOpti
 use crate::store::csr::Csr;
 use crate::store::intake::StageName;
 
-/// The giant component as a graph of its own. Its nodes have their own dense indices; the
-/// mapping back to the whole graph's indices is `whole_index`.
+/// The giant component as a graph of its own, with its nodes' own dense indices.
 pub(crate) struct GiantComponent<'a> {
-    /// The induced subgraph, indexed 0..k.
+    /// The subgraph, indexed 0..k.
     pub(crate) csr: SubGraph<'a>,
-    /// `whole_index[local]` is that node's index in the whole graph.
-    pub(crate) whole_index: Vec<u32>,
 }
 
-/// The whole graph when it is connected (no copy: at a billion edges a copy is 8.8 GB), else
-/// the induced subgraph.
+/// The whole graph when it is connected (no copy: at a billion edges a copy is 8.8 GB, and the
+/// indices are the whole graph's), else the induced subgraph and its nodes' whole-graph indices.
 pub(crate) enum SubGraph<'a> {
     Whole(&'a Csr),
-    Induced(Csr),
+    Induced {
+        csr: Csr,
+        /// `whole_index[local]` is that node's index in the whole graph.
+        whole_index: Vec<u32>,
+    },
 }
 
 impl std::ops::Deref for SubGraph<'_> {
@@ -41,7 +42,7 @@ impl std::ops::Deref for SubGraph<'_> {
     fn deref(&self) -> &Csr {
         match self {
             SubGraph::Whole(c) => c,
-            SubGraph::Induced(c) => c,
+            SubGraph::Induced { csr, .. } => csr,
         }
     }
 }
@@ -49,7 +50,10 @@ impl std::ops::Deref for SubGraph<'_> {
 impl GiantComponent<'_> {
     /// The whole graph's index of the giant component's node `local`.
     pub(crate) fn whole(&self, local: u32) -> usize {
-        self.whole_index[local as usize] as usize
+        match &self.csr {
+            SubGraph::Whole(_) => local as usize,
+            SubGraph::Induced { whole_index, .. } => whole_index[local as usize] as usize,
+        }
     }
 }
 
@@ -93,9 +97,9 @@ pub(crate) fn run<'a>(
     eccentricity: &mut [Option<u32>],
 ) -> DistanceOutcome<'a> {
     let n = csr.node_count();
-    let whole_index = comps.giant_nodes();
-    let node_set = node_set(comps, n, whole_index.len());
-    if whole_index.len() < 2 {
+    let giant_size = comps.giant_size();
+    let node_set = node_set(comps, n, giant_size);
+    if giant_size < 2 {
         return DistanceOutcome {
             node_set,
             diameter: None,
@@ -105,12 +109,15 @@ pub(crate) fn run<'a>(
         };
     }
     let giant = GiantComponent {
-        csr: if whole_index.len() == n {
+        csr: if giant_size == n {
             SubGraph::Whole(csr)
         } else {
-            SubGraph::Induced(components::induced(csr, &whole_index))
+            let whole_index = comps.giant_nodes();
+            SubGraph::Induced {
+                csr: components::induced(csr, &whole_index),
+                whole_index,
+            }
         },
-        whole_index,
     };
     let unreachable = unreachable_pairs(comps, n);
     let sub = &giant.csr;
