@@ -116,7 +116,7 @@ fn main() {
                 );
             }
             let pass = one_pass(&g.csr);
-            let scatter = plumb::exact::cost::scatter_seconds(&g.csr, opts.threads);
+            let scatter = plumb::exact::cost::listing_probe_seconds(&g.csr, opts.threads);
             let steps = plumb::exact::cost::triangle_steps(&g.csr);
             println!(
                 "{:<22} {:>11} one pass {:.2} s · probe {:.2} ns a step, {:.3e} listing steps · \

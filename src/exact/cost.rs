@@ -17,7 +17,7 @@ pub struct Rates {
     /// Wedge samples drawn and tested.
     pub wedges: f64,
     /// Forward triangle listing: seconds per step of [`triangle_steps`], as a multiple of the
-    /// graph's measured [`scatter_seconds`].
+    /// graph's measured [`listing_probe_seconds`].
     pub triangle_step_per_probe: f64,
 }
 
@@ -33,7 +33,7 @@ pub const REFERENCE_RATES: Rates = Rates {
 };
 
 /// Predicted seconds of forward triangle listing on `g`: its exact steps ([`triangle_steps`])
-/// at the cost per step that `probe` ([`scatter_seconds`] on `g`) measured on this machine.
+/// at the cost per step that `probe` ([`listing_probe_seconds`] on `g`) measured on this machine.
 pub fn triangle_seconds(g: &Csr, rates: &Rates, threads: usize, probe: f64) -> f64 {
     triangle_steps(g) * probe * rates.triangle_step_per_probe / threads.max(1) as f64
 }
@@ -57,19 +57,18 @@ pub fn sampling_seconds(g: &Csr, draws: f64, rates: &Rates, threads: usize) -> f
 /// (caches, TLB reach, pages mapped from disk) and its locality (a lattice's neighbours sit close,
 /// a random graph's do not), which no fixed rate can know. The fastest of three rounds (timing
 /// noise only adds); about a tenth of a second at 1e9 edges.
-pub fn scatter_seconds(g: &Csr, threads: usize) -> f64 {
+pub fn listing_probe_seconds(g: &Csr, threads: usize) -> f64 {
     (0..3)
-        .map(|_| scatter_round(g, threads))
+        .map(|_| listing_probe_round(g, threads))
         .fold(f64::INFINITY, f64::min)
 }
 
-fn scatter_round(g: &Csr, threads: usize) -> f64 {
+fn listing_probe_round(g: &Csr, threads: usize) -> f64 {
     use rayon::prelude::*;
     // Edge ends visited per thread, and the most of one list walked (hubs would dominate).
     const ENDS: usize = 1 << 14;
     const LIST_CAP: usize = 256;
     let t = g.targets();
-    let o = g.offsets();
     if t.is_empty() {
         return 0.0;
     }
@@ -85,12 +84,11 @@ fn scatter_round(g: &Csr, threads: usize) -> f64 {
                 x ^= x << 13;
                 x ^= x >> 7;
                 x ^= x << 17;
-                let v = t[((x as u128 * len) >> 64) as usize] as usize;
-                let dv = o[v + 1] - o[v];
-                let list = &t[o[v] as usize..o[v + 1] as usize];
+                let v = t[((x as u128 * len) >> 64) as usize];
+                let dv = g.degree(v);
+                let list = g.neighbors(v);
                 for &w in list.iter().take(LIST_CAP) {
-                    let dw = o[w as usize + 1] - o[w as usize];
-                    s = s.wrapping_add(((dw, w as usize) > (dv, v)) as u64);
+                    s = s.wrapping_add(((g.degree(w), w) > (dv, v)) as u64);
                 }
                 steps += list.len().min(LIST_CAP) as u64;
             }

@@ -51,21 +51,19 @@ pub struct DegreeStats {
 pub fn degree_stats(g: &Csr) -> DegreeStats {
     let n = g.node_count();
     let m = g.edge_count();
-    let o = g.offsets();
-    let deg = |u: usize| (o[u + 1] - o[u]) as u32;
-    let (min, max, isolated, sum_sq) = (0..n)
-        .into_par_iter()
-        .map(|u| {
-            let d = deg(u);
-            (d, d, (d == 0) as u64, (d as u128) * (d as u128))
-        })
+    // One compact degree array serves the moments, the histogram and assortativity's scattered
+    // reads (4 bytes a node instead of two 8-byte offsets: 400 MB instead of 800 MB at 1e8).
+    let deg: Vec<u32> = (0..n as u32).into_par_iter().map(|u| g.degree(u)).collect();
+    let (min, max, isolated, sum_sq) = deg
+        .par_iter()
+        .map(|&d| (d, d, (d == 0) as u64, (d as u128) * (d as u128)))
         .reduce(
             || (u32::MAX, 0, 0, 0),
             |a, b| (a.0.min(b.0), a.1.max(b.1), a.2 + b.2, a.3 + b.3),
         );
     let mut histogram = vec![0u64; max as usize + 1];
-    for u in 0..n {
-        histogram[deg(u) as usize] += 1;
+    for &d in &deg {
+        histogram[d as usize] += 1;
     }
     let mut log_bins = Vec::new();
     if histogram[0] > 0 {
@@ -105,22 +103,16 @@ pub fn degree_stats(g: &Csr) -> DegreeStats {
         },
         histogram,
         log_bins,
-        assortativity: assortativity(g),
+        assortativity: assortativity(g, &deg),
     }
 }
 
 /// Newman (2002), eq. (4), with sums over edges taken in both directions, which symmetrises the
 /// formula: r = (S_jk/M - (S_j/M)^2) / (S_jj/M - (S_j/M)^2) over the 2m edge ends.
-fn assortativity(g: &Csr) -> Option<f64> {
+fn assortativity(g: &Csr, deg: &[u32]) -> Option<f64> {
     let o = g.offsets();
     let t = g.targets();
     let n = g.node_count();
-    // A compact degree array: the scattered reads below then touch 4 bytes a node, not two
-    // 8-byte offsets (at 1e8 nodes, 400 MB instead of 800 MB).
-    let deg: Vec<u32> = (0..n)
-        .into_par_iter()
-        .map(|u| (o[u + 1] - o[u]) as u32)
-        .collect();
     // Over directed edge ends (u -> v): sum of d_u d_v, sum of d_u, sum of d_u^2.
     let (s_jk, s_j, s_jj) = (0..n)
         .into_par_iter()

@@ -32,8 +32,8 @@ pub(crate) fn run(
     clock: &mut Clock,
 ) -> ClusteringOutcome {
     // A listing step's cost depends on the machine, the graph's size and its locality: measure.
-    let scatter = cost::scatter_seconds(csr, opts.threads);
-    let predicted = cost::triangle_seconds(csr, &opts.rates, opts.threads, scatter);
+    let probe = cost::listing_probe_seconds(csr, opts.threads);
+    let predicted = cost::triangle_seconds(csr, &opts.rates, opts.threads, probe);
     let allowance = opts.exact_seconds.max(read_seconds);
     let mut sampling = None;
     let exact = match opts.clustering {

@@ -149,7 +149,7 @@ impl Report {
     }
 
     /// Attach the id sketches of `g` (the graph this report profiles).
-    /// Its time is a stage of the profile (a pass over every edge: about a minute at 1e9 edges).
+    /// Its time is a stage of the profile (`id sketch`): it is a pass over every edge.
     pub fn with_sketch(mut self, g: &crate::Graph) -> Report {
         let started = std::time::Instant::now();
         self.ids = Some(crate::estimate::sketch::IdSketch::of_graph(

@@ -145,12 +145,11 @@ impl Loader<'_> {
         }
     }
 
-    /// Whether every folder has the room `check_space` would ask for (unreadable: no).
+    /// Whether every folder has the room `check_space` asks for (unreadable: no).
     fn has_space(&self, needs: &[(PathBuf, u64)]) -> bool {
-        needs.iter().all(|(dir, bytes)| {
-            usable_space(dir)
-                .is_ok_and(|free| *bytes <= free.saturating_sub(self.opts.scratch_keep_free))
-        })
+        needs
+            .iter()
+            .all(|(dir, bytes)| self.check_space(dir, *bytes).is_ok())
     }
 
     fn check_space(&self, dir: &Path, needed: u64) -> Result<()> {
