@@ -45,7 +45,7 @@ pub fn triangle_seconds(g: &Csr, rates: &Rates, threads: usize, probe: f64) -> f
 /// passes over the nodes (cumulative wedge counts, degree bins: 50 ns a node, fitted to the
 /// Watts–Strogatz 200M stage, where draws are few). Fitted with `cargo bench --bench planner`
 /// here; no source.
-pub fn sampling_seconds(g: &Csr, draws: f64, rates: &Rates, threads: usize) -> f64 {
+pub fn draw_seconds(g: &Csr, draws: f64, rates: &Rates, threads: usize) -> f64 {
     let store = 8.0 * (g.edge_count() as f64 + g.node_count() as f64);
     let slowdown = (store / 4.0e8).clamp(1.0, 5.0);
     seconds(draws, rates.wedges, threads) * slowdown + g.node_count() as f64 * 5.0e-8

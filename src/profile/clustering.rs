@@ -141,5 +141,5 @@ fn sampling_seconds(csr: &Csr, opts: &ProfileOptions) -> f64 {
         .unwrap_or(0);
     let bins = 32 - max_degree.leading_zeros() as u64;
     let work = 2 * draws + bins * opts.bin_margin.pilot(opts.level);
-    cost::sampling_seconds(csr, work as f64, &opts.rates, opts.threads)
+    cost::draw_seconds(csr, work as f64, &opts.rates, opts.threads)
 }
