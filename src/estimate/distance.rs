@@ -4,7 +4,7 @@
 //! mean over all pairs. Intervals: finite-population corrected normal intervals over sources for
 //! the mean distance and the distribution, and a seeded percentile bootstrap over sources (Efron,
 //! "Bootstrap methods: another look at the jackknife", Ann. Statist. 7, 1979) for the effective
-//! diameter, which is not a mean. Sources run 64 at a time in one bit-parallel search.
+//! diameter, which is not a mean. Sources run 128 at a time in one bit-parallel search.
 
 use rand::{RngExt, SeedableRng};
 use rand_chacha::ChaCha8Rng;
@@ -20,8 +20,8 @@ use crate::store::csr::Csr;
 
 /// Bootstrap resamples for the effective diameter.
 const RESAMPLES: usize = 1000;
-/// Sources in the first stage of a precision-driven run (two bit-parallel batches).
-pub const PILOT: usize = 128;
+/// Sources in the first stage of a precision-driven run (one bit-parallel batch).
+pub const PILOT: usize = BATCH;
 
 /// Distance figures estimated by BFS from sampled sources (Eppstein & Wang, J. Graph Algorithms
 /// Appl. 8(1) 2004).
@@ -63,21 +63,43 @@ pub fn prefix_sample(n: u32, k: usize, seed: u64) -> Vec<u32> {
         .collect()
 }
 
-/// Per-source distance counts for `sources`, 64 per bit-parallel batch, batches in parallel.
+/// Sources per bit-parallel batch: one pass over the adjacency per level serves them all.
+pub const BATCH: usize = 128;
+
+/// Working memory for batches run side by side: more than this and batches run one after
+/// another (each still on every thread, see [`crate::exact::distances`]). At 1e8 nodes one
+/// batch's words take 4.8 GB.
+const SIDE_BY_SIDE_BYTES: u64 = 1 << 30;
+
+/// Per-source distance counts for `sources`, [`BATCH`] per bit-parallel batch. Small graphs run
+/// batches side by side; large ones one at a time, each spread over the threads, which halves
+/// the memory and shares the scattered reads. Either way each source's counts are exact, so the
+/// result does not depend on the schedule.
 fn search(g: &Csr, sources: &[u32]) -> PerSource {
     let n = g.node_count();
-    let batches: Vec<PerSource> = sources
-        .par_chunks(64)
-        .map_init(
-            || (BatchBuffers::new(n), Vec::new()),
-            |(bufs, each), batch| {
-                sources_batch_each(g, batch, bufs, each);
-                (0..batch.len())
-                    .map(|i| each.iter().map(|level| level[i]).collect())
-                    .collect()
-            },
-        )
-        .collect();
+    let run = |bufs: &mut BatchBuffers<u128>, each: &mut Vec<[u64; 128]>, batch: &[u32]| {
+        sources_batch_each(g, batch, bufs, each);
+        (0..batch.len())
+            .map(|i| each.iter().map(|level| level[i]).collect())
+            .collect::<PerSource>()
+    };
+    let threads = rayon::current_num_threads() as u64;
+    let batches: Vec<PerSource> = if BatchBuffers::<u128>::bytes(n) * threads <= SIDE_BY_SIDE_BYTES
+    {
+        sources
+            .par_chunks(BATCH)
+            .map_init(
+                || (BatchBuffers::new(n), Vec::new()),
+                |(bufs, each), batch| run(bufs, each, batch),
+            )
+            .collect()
+    } else {
+        let (mut bufs, mut each) = (BatchBuffers::new(n), Vec::new());
+        sources
+            .chunks(BATCH)
+            .map(|batch| run(&mut bufs, &mut each, batch))
+            .collect()
+    };
     batches.into_iter().flatten().collect()
 }
 
@@ -96,7 +118,7 @@ pub struct Pilot {
     pub summary: SampledDistances,
 }
 
-/// A pilot sample of sources (64, one bit-parallel batch) that sizes the full sample by Stein's
+/// A pilot sample of sources ([`PILOT`], one bit-parallel batch) that sizes the full sample by Stein's
 /// two-stage rule (Stein, Ann. Math. Statist. 16, 1945).
 pub fn pilot(g: &Csr, level: f64, max_sources: usize, seed: u64) -> Pilot {
     let n = g.node_count();
@@ -116,12 +138,12 @@ impl Pilot {
         self.per.len()
     }
 
-    /// Sources the whole estimate will use for ±`relative` (whole batches of 64, at least the
+    /// Sources the whole estimate will use for ±`relative` (whole batches of [`BATCH`], at least the
     /// pilot's, at most the order's).
     pub fn sources_needed(&self, relative: f64, level: f64) -> usize {
         let need = sources_for(&self.summary.mean, relative, level, self.summary.nodes);
-        need.div_ceil(64)
-            .saturating_mul(64)
+        need.div_ceil(BATCH)
+            .saturating_mul(BATCH)
             .clamp(self.per.len(), self.order.len())
     }
 

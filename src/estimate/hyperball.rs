@@ -96,8 +96,8 @@ pub fn neighbourhood_function(
     let n = g.node_count();
     let b = log2_registers as u32;
     let m = 1usize << b;
-    let mut cur = vec![0u8; n * m];
-    let mut next = vec![0u8; n * m];
+    let mut cur: Vec<u8> = crate::store::pages::zeroed(n * m);
+    let mut next: Vec<u8> = crate::store::pages::zeroed(n * m);
     let mut estimate = vec![0f64; n];
     let mut changed = vec![true; n];
     let mut changed_next = vec![false; n];

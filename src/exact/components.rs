@@ -11,6 +11,7 @@ use rayon::prelude::*;
 use serde::{Deserialize, Serialize};
 
 use crate::store::csr::Csr;
+use crate::store::pages;
 
 /// Component of every node, and sizes.
 #[derive(Debug, Clone)]
@@ -79,7 +80,8 @@ fn union(p: &[AtomicU32], a: u32, b: u32) {
 pub fn components(g: &Csr) -> Components {
     const FIRST: usize = 2;
     let n = g.node_count();
-    let parent: Vec<AtomicU32> = (0..n as u32).map(AtomicU32::new).collect();
+    let mut parent: Vec<AtomicU32> = pages::with_capacity(n);
+    parent.extend((0..n as u32).map(AtomicU32::new));
     for r in 0..FIRST {
         (0..n as u32).into_par_iter().for_each(|u| {
             if let Some(&v) = g.neighbors(u).get(r) {
@@ -100,11 +102,12 @@ pub fn components(g: &Csr) -> Components {
             union(&parent, u, v);
         }
     });
-    let label: Vec<u32> = (0..n as u32)
+    let mut label: Vec<u32> = pages::with_capacity(n);
+    (0..n as u32)
         .into_par_iter()
         .map(|u| find(&parent, u))
-        .collect();
-    let mut count = vec![0u64; n];
+        .collect_into_vec(&mut label);
+    let mut count: Vec<u64> = pages::zeroed(n);
     for &l in &label {
         count[l as usize] += 1;
     }

@@ -1,14 +1,16 @@
 //! Exact distances between all pairs of a connected graph, by bit-parallel breadth-first search:
 //! 64 sources advance together, one bit each per node, so a level costs one pass over the
 //! adjacency for all 64 (multi-source BFS in the manner of Then et al., "The more the merrier:
-//! efficient multi-source graph traversal", PVLDB 8(4), 2014). Batches run in parallel; the
-//! pair counts are integers, so results do not depend on the thread count.
+//! efficient multi-source graph traversal", PVLDB 8(4), 2014). Batches run in parallel, and a
+//! dense level's nodes are split over the threads too; the pair counts are integers, so results
+//! do not depend on the thread count. The sampled-source estimator uses 128-bit words.
 
 use rayon::prelude::*;
 use serde::{Deserialize, Serialize};
 
 use crate::figure::Figure;
 use crate::store::csr::Csr;
+use crate::store::pages;
 
 /// Ordered pairs at each distance and every node's eccentricity.
 #[derive(Debug, Clone, PartialEq)]
@@ -58,41 +60,115 @@ pub fn all_pairs_sources(g: &Csr, sources: std::ops::Range<u32>) -> AllPairs {
     }
 }
 
-/// The three word arrays a bit-parallel batch works in (one word per node), reused across
-/// batches by each worker.
-pub struct BatchBuffers {
-    seen: Vec<u64>,
-    frontier: Vec<u64>,
-    next: Vec<u64>,
+/// A node's word: one bit per source of a batch. `u64` for the all-pairs batches, which run
+/// many at once; `u128` for the sampled batches, which share one pass over the adjacency among
+/// 128 sources (a scattered read of 16 bytes costs about what one of 8 does).
+pub(crate) trait Word:
+    Copy
+    + Send
+    + Sync
+    + PartialEq
+    + bytemuck::Zeroable
+    + std::ops::BitOr<Output = Self>
+    + std::ops::BitOrAssign
+    + std::ops::BitAnd<Output = Self>
+    + std::ops::Not<Output = Self>
+{
+    /// Sources a word holds.
+    const WIDTH: usize;
+    const ZERO: Self;
+    /// The word with bits `0..k` set.
+    fn low(k: usize) -> Self;
+    fn bit(i: usize) -> Self;
+    fn ones(self) -> u64;
+    /// Call `f` with the index of every set bit, lowest first.
+    fn for_each_bit(self, f: impl FnMut(usize));
 }
 
-impl BatchBuffers {
-    /// Buffers for graphs of `n` nodes.
-    pub fn new(n: usize) -> Self {
-        BatchBuffers {
-            seen: vec![0; n],
-            frontier: vec![0; n],
-            next: vec![0; n],
+macro_rules! word {
+    ($t:ty) => {
+        impl Word for $t {
+            const WIDTH: usize = <$t>::BITS as usize;
+            const ZERO: Self = 0;
+            #[inline]
+            fn low(k: usize) -> Self {
+                if k >= Self::WIDTH {
+                    <$t>::MAX
+                } else {
+                    (1 << k) - 1
+                }
+            }
+            #[inline]
+            fn bit(i: usize) -> Self {
+                1 << i
+            }
+            #[inline]
+            fn ones(self) -> u64 {
+                self.count_ones() as u64
+            }
+            #[inline]
+            fn for_each_bit(self, mut f: impl FnMut(usize)) {
+                let mut bits = self;
+                while bits != 0 {
+                    f(bits.trailing_zeros() as usize);
+                    bits &= bits - 1;
+                }
+            }
         }
+    };
+}
+word!(u64);
+word!(u128);
+
+/// Per-source counts by level, `[d - 1][i]` = nodes at distance d from source i (room for the
+/// widest word).
+pub(crate) type PerSource = Vec<[u64; 128]>;
+
+/// The three word arrays a bit-parallel batch works in (one word per node), reused across
+/// batches by each worker. On huge pages: the pull's reads of `frontier` are scattered.
+pub(crate) struct BatchBuffers<W: Word> {
+    seen: Vec<W>,
+    frontier: Vec<W>,
+    next: Vec<W>,
+}
+
+impl<W: Word> BatchBuffers<W> {
+    /// Buffers for graphs of `n` nodes.
+    pub(crate) fn new(n: usize) -> Self {
+        BatchBuffers {
+            seen: pages::zeroed(n),
+            frontier: pages::zeroed(n),
+            next: pages::zeroed(n),
+        }
+    }
+
+    /// Bytes the buffers take for `n` nodes.
+    pub(crate) fn bytes(n: usize) -> u64 {
+        3 * n as u64 * std::mem::size_of::<W>() as u64
     }
 }
 
 /// One batch of up to 64 sources (distinct): returns ordered-pair counts by distance from them
 /// and their eccentricities.
-pub fn sources_batch(g: &Csr, sources: &[u32], bufs: &mut BatchBuffers) -> (Vec<u64>, Vec<u32>) {
-    batch::<false>(g, sources, bufs, &mut Vec::new())
-}
-
-/// As [`sources_batch`], and also `per_source[d - 1][i]` = nodes at distance d from
-/// `sources[i]`, for the estimators that need each source's own distribution.
-pub fn sources_batch_each(
+pub(crate) fn sources_batch(
     g: &Csr,
     sources: &[u32],
-    bufs: &mut BatchBuffers,
-    per_source: &mut Vec<[u64; 64]>,
+    bufs: &mut BatchBuffers<u64>,
+) -> (Vec<u64>, Vec<u32>) {
+    batch::<u64, false>(g, sources, bufs, &mut Vec::new())
+}
+
+/// One batch of up to 128 sources, as [`sources_batch`], and also `per_source[d - 1][i]` =
+/// nodes at distance d from `sources[i]`, for the estimators that need each source's own
+/// distribution.
+pub(crate) fn sources_batch_each(
+    g: &Csr,
+    sources: &[u32],
+    bufs: &mut BatchBuffers<u128>,
+    per_source: &mut PerSource,
 ) -> (Vec<u64>, Vec<u32>) {
     per_source.clear();
-    batch::<true>(g, sources, bufs, per_source)
+    batch::<u128, true>(g, sources, bufs, per_source)
 }
 
 /// Push (top-down) a level instead of pulling when the frontier's edges times this are fewer than
@@ -106,15 +182,83 @@ const PUSH_FACTOR: u64 = 4;
 /// pulled anyway.
 const LIST_SHARE: usize = 16;
 
+/// Nodes per task of a pull level: the level's nodes are independent, so tasks run on every
+/// thread and their tallies add up in task order, the same on any thread count.
+const PULL_CHUNK: usize = 1 << 14;
+
+/// What one task of a pull level (or a push level) found.
+struct Tally<W> {
+    /// Sources that reached some node.
+    any: W,
+    /// (node, source) pairs reached.
+    reached: u64,
+    /// Nodes reached per source (only when asked for).
+    each: [u64; 128],
+    /// Edge entries of nodes now reached from every source.
+    closed: u64,
+    /// The nodes reached, while no longer than the cap.
+    found: Option<Vec<u32>>,
+}
+
+impl<W: Word> Tally<W> {
+    fn new() -> Self {
+        Tally {
+            any: W::ZERO,
+            reached: 0,
+            each: [0; 128],
+            closed: 0,
+            found: Some(Vec::new()),
+        }
+    }
+
+    /// Node `v` is newly reached from the sources of `new`; `degree` closes when `full`.
+    #[inline]
+    fn record<const EACH: bool>(&mut self, v: u32, new: W, full: bool, degree: u64, cap: usize) {
+        self.reached += new.ones();
+        self.any |= new;
+        if EACH {
+            new.for_each_bit(|i| self.each[i] += 1);
+        }
+        if full {
+            self.closed += degree;
+        }
+        if let Some(l) = self.found.as_mut() {
+            if l.len() < cap {
+                l.push(v);
+            } else {
+                self.found = None;
+            }
+        }
+    }
+
+    /// Add a later task's tally.
+    fn absorb(&mut self, other: Tally<W>, cap: usize) {
+        self.any |= other.any;
+        self.reached += other.reached;
+        for (a, b) in self.each.iter_mut().zip(other.each) {
+            *a += b;
+        }
+        self.closed += other.closed;
+        self.found = match (self.found.take(), other.found) {
+            (Some(mut a), Some(b)) if a.len() + b.len() <= cap => {
+                a.extend(b);
+                Some(a)
+            }
+            _ => None,
+        };
+    }
+}
+
 /// One batch, direction-optimizing: sparse levels (the first few, and the last) push from a list
 /// of frontier nodes; dense ones pull over every node not yet reached from all sources, stopping
-/// a node's scan once every missing source is found. Both give the same `next` words, so the
-/// results equal the pull-only [`batch_pull`] (tested).
-fn batch<const EACH: bool>(
+/// a node's scan once every missing source is found, in tasks over blocks of nodes on every
+/// thread. Both directions give the same `next` words, so the results equal the pull-only
+/// [`batch_pull`] (tested).
+fn batch<W: Word, const EACH: bool>(
     g: &Csr,
     sources: &[u32],
-    bufs: &mut BatchBuffers,
-    per_source: &mut Vec<[u64; 64]>,
+    bufs: &mut BatchBuffers<W>,
+    per_source: &mut PerSource,
 ) -> (Vec<u64>, Vec<u32>) {
     let BatchBuffers {
         seen,
@@ -123,24 +267,25 @@ fn batch<const EACH: bool>(
     } = bufs;
     let n = seen.len();
     let k = sources.len();
-    assert!(k <= 64, "a batch holds at most 64 sources");
-    let full = if k == 64 { u64::MAX } else { (1u64 << k) - 1 };
-    seen.fill(0);
-    frontier.fill(0);
-    next.fill(0);
+    assert!(k <= W::WIDTH, "a batch holds at most {} sources", W::WIDTH);
+    let full = W::low(k);
+    seen.fill(W::ZERO);
+    frontier.fill(W::ZERO);
+    next.fill(W::ZERO);
     let o = g.offsets();
     let t = g.targets();
     let degree = |v: u32| o[v as usize + 1] - o[v as usize];
+    let cap = (n / LIST_SHARE).max(1024);
     // Nodes whose frontier word is nonzero, while few enough to keep.
     let mut list: Option<Vec<u32>> = Some(Vec::with_capacity(k));
     for (i, &s) in sources.iter().enumerate() {
-        if seen[s as usize] == 0
+        if seen[s as usize] == W::ZERO
             && let Some(l) = list.as_mut()
         {
             l.push(s);
         }
-        seen[s as usize] |= 1 << i;
-        frontier[s as usize] |= 1 << i;
+        seen[s as usize] |= W::bit(i);
+        frontier[s as usize] |= W::bit(i);
     }
     // Edge entries of nodes not yet reached from every source (the pull's worst case).
     let mut open_edges = t.len() as u64
@@ -156,113 +301,102 @@ fn batch<const EACH: bool>(
     let mut level = 0u32;
     loop {
         level += 1;
-        let mut any = 0u64;
-        let mut reached = 0u64;
-        let mut each = [0u64; 64];
-        let mut record = |new: u64, any: &mut u64, reached: &mut u64| {
-            *reached += new.count_ones() as u64;
-            *any |= new;
-            if EACH {
-                for_each_bit(new, |i| each[i] += 1);
-            }
-        };
         let push = list.as_ref().is_some_and(|l| {
             let frontier_edges: u64 = l.iter().map(|&u| degree(u)).sum();
             frontier_edges.saturating_mul(PUSH_FACTOR) < open_edges
         });
-        let mut found: Option<Vec<u32>> = Some(Vec::new());
-        if push {
+        let tally = if push {
             // `next` must start at zero: clear what the last level left in it.
             match next_list.take() {
-                Some(l) => l.iter().for_each(|&w| next[w as usize] = 0),
-                None => next.fill(0),
+                Some(l) => l.iter().for_each(|&w| next[w as usize] = W::ZERO),
+                None => next.fill(W::ZERO),
             }
-            let found = found.as_mut().expect("a push keeps its list");
+            let mut touched = Vec::new();
             for &u in list.as_deref().unwrap_or_default() {
                 let bits = frontier[u as usize];
                 for &w in &t[o[u as usize] as usize..o[u as usize + 1] as usize] {
                     let new = bits & !seen[w as usize];
-                    if new != 0 {
-                        if next[w as usize] == 0 {
-                            found.push(w);
+                    if new != W::ZERO {
+                        if next[w as usize] == W::ZERO {
+                            touched.push(w);
                         }
                         next[w as usize] |= new;
                     }
                 }
             }
-            for &w in found.iter() {
+            let mut tally = Tally::new();
+            for &w in &touched {
                 let new = next[w as usize];
                 seen[w as usize] |= new;
-                if seen[w as usize] == full {
-                    open_edges -= degree(w);
-                }
-                record(new, &mut any, &mut reached);
+                let closes = seen[w as usize] == full;
+                tally.record::<EACH>(w, new, closes, degree(w), usize::MAX);
             }
+            tally.found = Some(touched);
+            tally
         } else {
-            for v in 0..n {
-                let sv = seen[v];
-                if sv == full {
-                    next[v] = 0;
-                    continue;
-                }
-                let mut acc = 0u64;
-                for &w in &t[o[v] as usize..o[v + 1] as usize] {
-                    acc |= frontier[w as usize];
-                    if (acc | sv) == full {
-                        break;
-                    }
-                }
-                let new = acc & !sv;
-                next[v] = new;
-                if new != 0 {
-                    seen[v] |= new;
-                    if seen[v] == full {
-                        open_edges -= degree(v as u32);
-                    }
-                    record(new, &mut any, &mut reached);
-                    if let Some(l) = found.as_mut() {
-                        if l.len() < (n / LIST_SHARE).max(1024) {
-                            l.push(v as u32);
-                        } else {
-                            found = None;
+            let frontier: &[W] = frontier;
+            seen.par_chunks_mut(PULL_CHUNK)
+                .zip(next.par_chunks_mut(PULL_CHUNK))
+                .enumerate()
+                .map(|(c, (seen, next))| {
+                    let mut tally = Tally::new();
+                    let base = c * PULL_CHUNK;
+                    for (j, (sv, nv)) in seen.iter_mut().zip(next.iter_mut()).enumerate() {
+                        let s = *sv;
+                        if s == full {
+                            *nv = W::ZERO;
+                            continue;
+                        }
+                        let v = base + j;
+                        let mut acc = W::ZERO;
+                        for &w in &t[o[v] as usize..o[v + 1] as usize] {
+                            acc |= frontier[w as usize];
+                            if (acc | s) == full {
+                                break;
+                            }
+                        }
+                        let new = acc & !s;
+                        *nv = new;
+                        if new != W::ZERO {
+                            *sv = s | new;
+                            tally.record::<EACH>(v as u32, new, *sv == full, o[v + 1] - o[v], cap);
                         }
                     }
-                }
-            }
-        }
-        if any == 0 {
+                    tally
+                })
+                .collect::<Vec<_>>()
+                .into_iter()
+                .reduce(|mut a, b| {
+                    a.absorb(b, cap);
+                    a
+                })
+                .unwrap_or_else(Tally::new)
+        };
+        if tally.any == W::ZERO {
             break;
         }
-        counts.push(reached);
+        open_edges -= tally.closed;
+        counts.push(tally.reached);
         if EACH {
-            per_source.push(each);
+            per_source.push(tally.each);
         }
-        for_each_bit(any, |i| ecc[i] = level);
+        tally.any.for_each_bit(|i| ecc[i] = level);
         std::mem::swap(frontier, next);
         // `next` now holds the old frontier, whose nonzero words `list` names.
         next_list = list;
-        list = found;
+        list = tally.found;
     }
     (counts, ecc)
 }
 
-/// Call `f` with the index of every set bit of `bits`, lowest first.
-#[inline]
-fn for_each_bit(mut bits: u64, mut f: impl FnMut(usize)) {
-    while bits != 0 {
-        f(bits.trailing_zeros() as usize);
-        bits &= bits - 1;
-    }
-}
-
-/// The pull-only batch: every level scans every node not yet reached from all sources. The
-/// simple twin the direction-optimizing [`batch`] is tested against.
+/// The pull-only batch: every level scans every node not yet reached from all sources, one
+/// node after another. The simple twin the direction-optimizing [`batch`] is tested against.
 #[cfg(test)]
-fn batch_pull<const EACH: bool>(
+fn batch_pull<W: Word, const EACH: bool>(
     g: &Csr,
     sources: &[u32],
-    bufs: &mut BatchBuffers,
-    per_source: &mut Vec<[u64; 64]>,
+    bufs: &mut BatchBuffers<W>,
+    per_source: &mut PerSource,
 ) -> (Vec<u64>, Vec<u32>) {
     let BatchBuffers {
         seen,
@@ -270,12 +404,12 @@ fn batch_pull<const EACH: bool>(
         next,
     } = bufs;
     let k = sources.len();
-    let full = if k == 64 { u64::MAX } else { (1u64 << k) - 1 };
-    seen.fill(0);
-    frontier.fill(0);
+    let full = W::low(k);
+    seen.fill(W::ZERO);
+    frontier.fill(W::ZERO);
     for (i, &s) in sources.iter().enumerate() {
-        seen[s as usize] |= 1 << i;
-        frontier[s as usize] |= 1 << i;
+        seen[s as usize] |= W::bit(i);
+        frontier[s as usize] |= W::bit(i);
     }
     let o = g.offsets();
     let t = g.targets();
@@ -284,37 +418,37 @@ fn batch_pull<const EACH: bool>(
     let mut level = 0u32;
     loop {
         level += 1;
-        let mut any = 0u64;
+        let mut any = W::ZERO;
         let mut reached = 0u64;
-        let mut each = [0u64; 64];
+        let mut each = [0u64; 128];
         for v in 0..seen.len() {
             if seen[v] == full {
-                next[v] = 0;
+                next[v] = W::ZERO;
                 continue;
             }
-            let mut acc = 0u64;
+            let mut acc = W::ZERO;
             for &w in &t[o[v] as usize..o[v + 1] as usize] {
                 acc |= frontier[w as usize];
             }
             let new = acc & !seen[v];
             next[v] = new;
-            if new != 0 {
+            if new != W::ZERO {
                 seen[v] |= new;
-                reached += new.count_ones() as u64;
+                reached += new.ones();
                 any |= new;
                 if EACH {
-                    for_each_bit(new, |i| each[i] += 1);
+                    new.for_each_bit(|i| each[i] += 1);
                 }
             }
         }
-        if any == 0 {
+        if any == W::ZERO {
             break;
         }
         counts.push(reached);
         if EACH {
             per_source.push(each);
         }
-        for_each_bit(any, |i| ecc[i] = level);
+        any.for_each_bit(|i| ecc[i] = level);
         std::mem::swap(frontier, next);
     }
     (counts, ecc)
@@ -445,7 +579,8 @@ mod tests {
     }
 
     /// The direction-optimizing batch equals its pull-only twin, word for word, on graphs of
-    /// the three generators and a disconnected one, for full and partial batches.
+    /// the three generators and a disconnected one, for full and partial batches of both word
+    /// widths.
     #[test]
     fn push_and_pull_agree_with_pull_only() {
         use crate::models::generate;
@@ -458,18 +593,29 @@ mod tests {
         let mut e: Vec<(u32, u32)> = (0..500).map(|i| (i, (i + 1) % 500)).collect();
         e.extend((500..900).map(|i| (i, if i == 899 { 500 } else { i + 1 })));
         graphs.push(Csr::from_edges(900, &e));
+        // Larger than a few pull tasks, so their tallies and lists are joined.
+        graphs.push(generate::preferential_attachment(
+            3 * PULL_CHUNK as u32 + 500,
+            3,
+            9,
+        ));
         for g in &graphs {
-            let n = g.node_count() as u32;
-            let mut fast = BatchBuffers::new(n as usize);
-            let mut slow = BatchBuffers::new(n as usize);
-            for (k, step) in [(64usize, 37u32), (5, 101), (1, 13)] {
-                let sources: Vec<u32> = (0..k as u32).map(|i| (i * step + 11) % n).collect();
-                let (mut a, mut b) = (Vec::new(), Vec::new());
-                let got = batch::<true>(g, &sources, &mut fast, &mut a);
-                let want = batch_pull::<true>(g, &sources, &mut slow, &mut b);
-                assert_eq!(got, want, "{k} sources on {n} nodes");
-                assert_eq!(a, b, "per-source counts, {k} sources on {n} nodes");
-            }
+            check::<u64>(g, &[64, 5, 1]);
+            check::<u128>(g, &[128, 100, 64, 1]);
+        }
+    }
+
+    fn check<W: Word>(g: &Csr, widths: &[usize]) {
+        let n = g.node_count() as u32;
+        let mut fast = BatchBuffers::<W>::new(n as usize);
+        let mut slow = BatchBuffers::<W>::new(n as usize);
+        for (&k, step) in widths.iter().zip([37u32, 101, 13, 7]) {
+            let sources: Vec<u32> = (0..k as u32).map(|i| (i * step + 11) % n).collect();
+            let (mut a, mut b) = (Vec::new(), Vec::new());
+            let got = batch::<W, true>(g, &sources, &mut fast, &mut a);
+            let want = batch_pull::<W, true>(g, &sources, &mut slow, &mut b);
+            assert_eq!(got, want, "{k} sources on {n} nodes");
+            assert_eq!(a, b, "per-source counts, {k} sources on {n} nodes");
         }
     }
 

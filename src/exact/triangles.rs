@@ -43,7 +43,11 @@ fn over_stamped(dag: &Csr, visit: impl Fn(&[u32], u32) -> u64 + Sync) -> u64 {
         .into_par_iter()
         .with_min_len(1024)
         .map_init(
-            || vec![u32::MAX; n],
+            || {
+                let mut stamp = crate::store::pages::with_capacity(n);
+                stamp.resize(n, u32::MAX);
+                stamp
+            },
             |stamp, u| {
                 for &w in dag.neighbors(u) {
                     stamp[w as usize] = u;
@@ -58,7 +62,8 @@ fn over_stamped(dag: &Csr, visit: impl Fn(&[u32], u32) -> u64 + Sync) -> u64 {
 /// (u, v, w) is found once, at u, and credited to u, v and w.
 pub fn count(g: &Csr) -> Triangles {
     let dag = oriented(g);
-    let per: Vec<AtomicU64> = (0..g.node_count()).map(|_| AtomicU64::new(0)).collect();
+    let mut per: Vec<AtomicU64> = crate::store::pages::with_capacity(g.node_count());
+    per.extend((0..g.node_count()).map(|_| AtomicU64::new(0)));
     let total = over_stamped(&dag, |stamp, u| {
         let mut at_u = 0u64;
         for &v in dag.neighbors(u) {

@@ -288,7 +288,8 @@ fn estimate_distances(
             let k = p.sources_needed(opts.distance_tolerance, opts.level) as u64;
             let done = p.sources_done() as u64;
             let src_secs = if pilot_time > 0.0 && done > 0 {
-                pilot_time * k.div_ceil(64) as f64 / done.div_ceil(64) as f64
+                pilot_time * k.div_ceil(sampled::BATCH as u64) as f64
+                    / done.div_ceil(sampled::BATCH as u64) as f64
             } else {
                 seconds(
                     bfs_work(k, sn, sm, giant.levels),

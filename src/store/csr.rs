@@ -103,8 +103,8 @@ impl Csr {
             })
             .collect();
         let total: usize = blocks.iter().map(|b| b.1.len()).sum();
-        let mut offsets = Vec::with_capacity(n + 1);
-        let mut targets = Vec::with_capacity(total);
+        let mut offsets = super::pages::with_capacity(n + 1);
+        let mut targets = super::pages::with_capacity(total);
         offsets.push(0u64);
         let mut acc = 0u64;
         for (lens, out) in blocks {

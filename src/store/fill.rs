@@ -29,7 +29,7 @@ pub struct Filled {
 
 /// A zeroed vector of atomics, using the allocator's zeroed pages.
 fn atomic_zeroed(len: usize) -> Vec<AtomicU32> {
-    let v = std::mem::ManuallyDrop::new(vec![0u32; len]);
+    let v = std::mem::ManuallyDrop::new(crate::store::pages::zeroed::<u32>(len));
     let (ptr, len, cap) = (v.as_ptr() as *mut AtomicU32, v.len(), v.capacity());
     // SAFETY: AtomicU32 has the same size, alignment and bit validity as u32, and the
     // allocation is handed over whole (the original Vec is never dropped).
@@ -47,7 +47,7 @@ fn plain(v: Vec<AtomicU32>) -> Vec<u32> {
 impl Filler {
     /// Size every region by its raw degree.
     pub fn new(raw_degree: &[u32]) -> Self {
-        let mut offsets = Vec::with_capacity(raw_degree.len() + 1);
+        let mut offsets = super::pages::with_capacity(raw_degree.len() + 1);
         let mut acc = 0u64;
         offsets.push(0);
         for &d in raw_degree {

@@ -10,6 +10,7 @@ pub(crate) mod ids;
 pub mod intake;
 pub mod limits;
 pub mod load;
+pub(crate) mod pages;
 /// The naive reference reader, for tests and fuzzing (feature `reference`).
 #[cfg(any(test, feature = "reference"))]
 pub mod reference;

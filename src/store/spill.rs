@@ -263,7 +263,7 @@ impl Spiller {
         }
         progress.stage("merging runs", Some(total), Unit::Items);
         let mut merge = KWay::open(&runs, read_keys)?;
-        let mut counts = vec![0u64; n + 1];
+        let mut counts: Vec<u64> = super::pages::zeroed(n + 1);
         let mut block: Vec<u32> = Vec::with_capacity(1 << 18);
         let mut last = u64::MAX;
         let mut last_has_front = false;
