@@ -72,6 +72,8 @@ pub(crate) trait Word:
     + std::ops::BitOr<Output = Self>
     + std::ops::BitOrAssign
     + std::ops::BitAnd<Output = Self>
+    + std::ops::BitXor<Output = Self>
+    + std::ops::BitXorAssign
     + std::ops::Not<Output = Self>
 {
     /// Sources a word holds.
@@ -124,12 +126,15 @@ word!(u128);
 /// widest word).
 pub(crate) type PerSource = Vec<[u64; 128]>;
 
-/// The three word arrays a bit-parallel batch works in (one word per node), reused across
-/// batches by each worker. On huge pages: the pull's reads of `frontier` are scattered.
+/// The three word arrays a bit-parallel batch works in (one word per node), and a bit per node
+/// saying which frontier (and next) words are nonzero, reused across batches by each worker.
+/// On huge pages: the pull's reads of `frontier` are scattered.
 pub(crate) struct BatchBuffers<W: Word> {
     seen: Vec<W>,
     frontier: Vec<W>,
     next: Vec<W>,
+    front_bits: Vec<u64>,
+    next_bits: Vec<u64>,
 }
 
 impl<W: Word> BatchBuffers<W> {
@@ -139,12 +144,14 @@ impl<W: Word> BatchBuffers<W> {
             seen: pages::zeroed(n),
             frontier: pages::zeroed(n),
             next: pages::zeroed(n),
+            front_bits: vec![0; n.div_ceil(64)],
+            next_bits: vec![0; n.div_ceil(64)],
         }
     }
 
     /// Bytes the buffers take for `n` nodes.
     pub(crate) fn bytes(n: usize) -> u64 {
-        3 * n as u64 * std::mem::size_of::<W>() as u64
+        3 * n as u64 * std::mem::size_of::<W>() as u64 + 2 * n.div_ceil(64) as u64 * 8
     }
 }
 
@@ -186,18 +193,29 @@ const LIST_SHARE: usize = 16;
 /// thread and their tallies add up in task order, the same on any thread count.
 const PULL_CHUNK: usize = 1 << 14;
 
+/// Bit planes of the per-source counters: counts up to 2^16 - 1 between flushes.
+const PLANES: usize = 16;
+
 /// What one task of a pull level (or a push level) found.
 struct Tally<W> {
     /// Sources that reached some node.
     any: W,
     /// (node, source) pairs reached.
     reached: u64,
-    /// Nodes reached per source (only when asked for).
+    /// Nodes reached per source (only when asked for), less what `planes` holds.
     each: [u64; 128],
+    /// Per-source counters, bit-sliced: plane p holds bit p of every source's count, so one
+    /// node's word is added in a few word operations instead of one step per set bit (at a
+    /// billion edges a level reaches 9e9 (node, source) pairs).
+    planes: [W; PLANES],
+    /// Words added to `planes` since they were last emptied into `each`.
+    pending: u32,
     /// Edge entries of nodes now reached from every source.
     closed: u64,
     /// The nodes reached, while no longer than the cap.
     found: Option<Vec<u32>>,
+    /// How many nodes were reached (the nonzero `next` words).
+    nodes: usize,
 }
 
 impl<W: Word> Tally<W> {
@@ -206,8 +224,11 @@ impl<W: Word> Tally<W> {
             any: W::ZERO,
             reached: 0,
             each: [0; 128],
+            planes: [W::ZERO; PLANES],
+            pending: 0,
             closed: 0,
             found: Some(Vec::new()),
+            nodes: 0,
         }
     }
 
@@ -216,8 +237,21 @@ impl<W: Word> Tally<W> {
     fn record<const EACH: bool>(&mut self, v: u32, new: W, full: bool, degree: u64, cap: usize) {
         self.reached += new.ones();
         self.any |= new;
+        self.nodes += 1;
         if EACH {
-            new.for_each_bit(|i| self.each[i] += 1);
+            let mut carry = new;
+            for p in self.planes.iter_mut() {
+                let c = *p & carry;
+                *p ^= carry;
+                carry = c;
+                if carry == W::ZERO {
+                    break;
+                }
+            }
+            self.pending += 1;
+            if self.pending == (1 << PLANES) - 1 {
+                self.flush();
+            }
         }
         if full {
             self.closed += degree;
@@ -231,14 +265,26 @@ impl<W: Word> Tally<W> {
         }
     }
 
+    /// Empty the bit-sliced counters into `each`.
+    fn flush(&mut self) {
+        for (p, plane) in self.planes.iter_mut().enumerate() {
+            plane.for_each_bit(|i| self.each[i] += 1 << p);
+            *plane = W::ZERO;
+        }
+        self.pending = 0;
+    }
+
     /// Add a later task's tally.
-    fn absorb(&mut self, other: Tally<W>, cap: usize) {
+    fn absorb(&mut self, mut other: Tally<W>, cap: usize) {
+        self.flush();
+        other.flush();
         self.any |= other.any;
         self.reached += other.reached;
         for (a, b) in self.each.iter_mut().zip(other.each) {
             *a += b;
         }
         self.closed += other.closed;
+        self.nodes += other.nodes;
         self.found = match (self.found.take(), other.found) {
             (Some(mut a), Some(b)) if a.len() + b.len() <= cap => {
                 a.extend(b);
@@ -264,6 +310,8 @@ fn batch<W: Word, const EACH: bool>(
         seen,
         frontier,
         next,
+        front_bits,
+        next_bits,
     } = bufs;
     let n = seen.len();
     let k = sources.len();
@@ -272,6 +320,7 @@ fn batch<W: Word, const EACH: bool>(
     seen.fill(W::ZERO);
     frontier.fill(W::ZERO);
     next.fill(W::ZERO);
+    front_bits.fill(0);
     let o = g.offsets();
     let t = g.targets();
     let degree = |v: u32| o[v as usize + 1] - o[v as usize];
@@ -286,7 +335,12 @@ fn batch<W: Word, const EACH: bool>(
         }
         seen[s as usize] |= W::bit(i);
         frontier[s as usize] |= W::bit(i);
+        front_bits[s as usize / 64] |= 1 << (s % 64);
     }
+    let mut front_nodes = front_bits
+        .iter()
+        .map(|b| b.count_ones() as usize)
+        .sum::<usize>();
     // Edge entries of nodes not yet reached from every source (the pull's worst case).
     let mut open_edges = t.len() as u64
         - sources
@@ -305,7 +359,7 @@ fn batch<W: Word, const EACH: bool>(
             let frontier_edges: u64 = l.iter().map(|&u| degree(u)).sum();
             frontier_edges.saturating_mul(PUSH_FACTOR) < open_edges
         });
-        let tally = if push {
+        let mut tally = if push {
             // `next` must start at zero: clear what the last level left in it.
             match next_list.take() {
                 Some(l) => l.iter().for_each(|&w| next[w as usize] = W::ZERO),
@@ -331,38 +385,35 @@ fn batch<W: Word, const EACH: bool>(
                 let closes = seen[w as usize] == full;
                 tally.record::<EACH>(w, new, closes, degree(w), usize::MAX);
             }
+            next_bits.fill(0);
+            for &w in &touched {
+                next_bits[w as usize / 64] |= 1 << (w % 64);
+            }
             tally.found = Some(touched);
             tally
         } else {
-            let frontier: &[W] = frontier;
+            let task = Pull {
+                o,
+                t,
+                frontier,
+                front_bits,
+                full,
+                cap,
+            };
+            // A sparse frontier's bitmap (n/8 bytes, cache-resident) answers most reads that
+            // would otherwise miss memory for a zero word (Beamer et al. keep the bottom-up
+            // frontier as a bitmap for the same reason).
+            let sparse = front_nodes * 2 < n;
             seen.par_chunks_mut(PULL_CHUNK)
                 .zip(next.par_chunks_mut(PULL_CHUNK))
+                .zip(next_bits.par_chunks_mut(PULL_CHUNK / 64))
                 .enumerate()
-                .map(|(c, (seen, next))| {
-                    let mut tally = Tally::new();
-                    let base = c * PULL_CHUNK;
-                    for (j, (sv, nv)) in seen.iter_mut().zip(next.iter_mut()).enumerate() {
-                        let s = *sv;
-                        if s == full {
-                            *nv = W::ZERO;
-                            continue;
-                        }
-                        let v = base + j;
-                        let mut acc = W::ZERO;
-                        for &w in &t[o[v] as usize..o[v + 1] as usize] {
-                            acc |= frontier[w as usize];
-                            if (acc | s) == full {
-                                break;
-                            }
-                        }
-                        let new = acc & !s;
-                        *nv = new;
-                        if new != W::ZERO {
-                            *sv = s | new;
-                            tally.record::<EACH>(v as u32, new, *sv == full, o[v + 1] - o[v], cap);
-                        }
+                .map(|(c, ((seen, next), bits))| {
+                    if sparse {
+                        task.run::<EACH, true>(c * PULL_CHUNK, seen, next, bits)
+                    } else {
+                        task.run::<EACH, false>(c * PULL_CHUNK, seen, next, bits)
                     }
-                    tally
                 })
                 .collect::<Vec<_>>()
                 .into_iter()
@@ -378,15 +429,72 @@ fn batch<W: Word, const EACH: bool>(
         open_edges -= tally.closed;
         counts.push(tally.reached);
         if EACH {
+            tally.flush();
             per_source.push(tally.each);
         }
         tally.any.for_each_bit(|i| ecc[i] = level);
         std::mem::swap(frontier, next);
+        std::mem::swap(front_bits, next_bits);
+        front_nodes = tally.nodes;
         // `next` now holds the old frontier, whose nonzero words `list` names.
         next_list = list;
         list = tally.found;
     }
     (counts, ecc)
+}
+
+/// One pull level's view of the batch, shared by its tasks.
+struct Pull<'a, W> {
+    o: &'a [u64],
+    t: &'a [u32],
+    frontier: &'a [W],
+    front_bits: &'a [u64],
+    full: W,
+    cap: usize,
+}
+
+impl<W: Word> Pull<'_, W> {
+    /// Pull the nodes `base..base + seen.len()` (their words `seen`, `next`, and `bits`, the
+    /// next bitmap's words for them); with `SPARSE`, a neighbour's frontier word is read only
+    /// when the bitmap says it is nonzero.
+    #[inline]
+    fn run<const EACH: bool, const SPARSE: bool>(
+        &self,
+        base: usize,
+        seen: &mut [W],
+        next: &mut [W],
+        bits: &mut [u64],
+    ) -> Tally<W> {
+        let (o, t, full) = (self.o, self.t, self.full);
+        let mut tally = Tally::new();
+        bits.fill(0);
+        for (j, (sv, nv)) in seen.iter_mut().zip(next.iter_mut()).enumerate() {
+            let s = *sv;
+            if s == full {
+                *nv = W::ZERO;
+                continue;
+            }
+            let v = base + j;
+            let mut acc = W::ZERO;
+            for &w in &t[o[v] as usize..o[v + 1] as usize] {
+                if SPARSE && self.front_bits[w as usize / 64] & (1 << (w % 64)) == 0 {
+                    continue;
+                }
+                acc |= self.frontier[w as usize];
+                if (acc | s) == full {
+                    break;
+                }
+            }
+            let new = acc & !s;
+            *nv = new;
+            if new != W::ZERO {
+                *sv = s | new;
+                bits[j / 64] |= 1 << (j % 64);
+                tally.record::<EACH>(v as u32, new, *sv == full, o[v + 1] - o[v], self.cap);
+            }
+        }
+        tally
+    }
 }
 
 /// The pull-only batch: every level scans every node not yet reached from all sources, one
@@ -402,6 +510,7 @@ fn batch_pull<W: Word, const EACH: bool>(
         seen,
         frontier,
         next,
+        ..
     } = bufs;
     let k = sources.len();
     let full = W::low(k);
