@@ -13,7 +13,7 @@ use rustc_hash::FxHashMap;
 
 use super::interval::z_for;
 use super::sample::mean_interval;
-use crate::exact::distances::{BatchBuffers, effective_diameter, sources_batch_each};
+use crate::exact::distances::{BatchBuffers, Word, effective_diameter, sources_batch_each};
 use crate::figure::{Figure, Interval};
 use crate::numeric::{mean_variance, percentile_interval};
 use crate::store::csr::Csr;
@@ -63,41 +63,58 @@ pub fn prefix_sample(n: u32, k: usize, seed: u64) -> Vec<u32> {
         .collect()
 }
 
-/// Sources per bit-parallel batch: one pass over the adjacency per level serves them all.
+/// Sources per bit-parallel batch on large graphs (small ones run two of 64 side by side): one
+/// pass over the adjacency per level serves them all. The pilot and the sample grow by this many.
 pub const BATCH: usize = 128;
 
 /// Working memory for batches run side by side: more than this and batches run one after
 /// another (each still on every thread, see [`crate::exact::distances`]). At 1e8 nodes one
-/// batch's words take 4.8 GB.
+/// 128-source batch's words take 4.8 GB.
 const SIDE_BY_SIDE_BYTES: u64 = 1 << 30;
 
-/// Per-source distance counts for `sources`, [`BATCH`] per bit-parallel batch. Small graphs run
-/// batches side by side; large ones one at a time, each spread over the threads, which halves
-/// the memory and shares the scattered reads. Either way each source's counts are exact, so the
-/// result does not depend on the schedule.
+/// A 64-source batch whose words take no more than this (a last-level cache; 32 MiB on the
+/// reference machine) runs as such: its scattered reads hit the cache, so sharing them buys
+/// little, and two batches side by side also push their sparse levels in parallel.
+const CACHED_WORDS_BYTES: u64 = 32 << 20;
+
+/// Per-source distance counts for `sources`. Graphs whose words fit in cache run batches of 64
+/// side by side, one per thread; larger ones batches of [`BATCH`], whose scattered reads serve
+/// twice the sources, side by side while memory allows, else one at a time with their dense
+/// levels spread over the threads. Either way each source's counts are exact, so the result
+/// does not depend on the schedule.
 fn search(g: &Csr, sources: &[u32]) -> PerSource {
     let n = g.node_count();
-    let run = |bufs: &mut BatchBuffers<u128>, each: &mut Vec<[u64; 128]>, batch: &[u32]| {
+    fn run<W: Word>(
+        g: &Csr,
+        bufs: &mut BatchBuffers<W>,
+        each: &mut Vec<[u64; 128]>,
+        batch: &[u32],
+    ) -> PerSource {
         sources_batch_each(g, batch, bufs, each);
         (0..batch.len())
             .map(|i| each.iter().map(|level| level[i]).collect())
-            .collect::<PerSource>()
-    };
-    let threads = rayon::current_num_threads() as u64;
-    let batches: Vec<PerSource> = if BatchBuffers::<u128>::bytes(n) * threads <= SIDE_BY_SIDE_BYTES
-    {
+            .collect()
+    }
+    fn side_by_side<W: Word>(g: &Csr, sources: &[u32], width: usize) -> Vec<PerSource> {
+        let n = g.node_count();
         sources
-            .par_chunks(BATCH)
+            .par_chunks(width)
             .map_init(
-                || (BatchBuffers::new(n), Vec::new()),
-                |(bufs, each), batch| run(bufs, each, batch),
+                || (BatchBuffers::<W>::new(n), Vec::new()),
+                |(bufs, each), batch| run(g, bufs, each, batch),
             )
             .collect()
+    }
+    let threads = rayon::current_num_threads() as u64;
+    let batches: Vec<PerSource> = if BatchBuffers::<u64>::bytes(n) <= CACHED_WORDS_BYTES {
+        side_by_side::<u64>(g, sources, 64)
+    } else if BatchBuffers::<u128>::bytes(n) * threads <= SIDE_BY_SIDE_BYTES {
+        side_by_side::<u128>(g, sources, BATCH)
     } else {
-        let (mut bufs, mut each) = (BatchBuffers::new(n), Vec::new());
+        let (mut bufs, mut each) = (BatchBuffers::<u128>::new(n), Vec::new());
         sources
             .chunks(BATCH)
-            .map(|batch| run(&mut bufs, &mut each, batch))
+            .map(|batch| run(g, &mut bufs, &mut each, batch))
             .collect()
     };
     batches.into_iter().flatten().collect()

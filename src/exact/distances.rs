@@ -165,17 +165,17 @@ pub(crate) fn sources_batch(
     batch::<u64, false>(g, sources, bufs, &mut Vec::new())
 }
 
-/// One batch of up to 128 sources, as [`sources_batch`], and also `per_source[d - 1][i]` =
-/// nodes at distance d from `sources[i]`, for the estimators that need each source's own
+/// One batch of up to `W::WIDTH` sources, as [`sources_batch`], and also `per_source[d - 1][i]`
+/// = nodes at distance d from `sources[i]`, for the estimators that need each source's own
 /// distribution.
-pub(crate) fn sources_batch_each(
+pub(crate) fn sources_batch_each<W: Word>(
     g: &Csr,
     sources: &[u32],
-    bufs: &mut BatchBuffers<u128>,
+    bufs: &mut BatchBuffers<W>,
     per_source: &mut PerSource,
 ) -> (Vec<u64>, Vec<u32>) {
     per_source.clear();
-    batch::<u128, true>(g, sources, bufs, per_source)
+    batch::<W, true>(g, sources, bufs, per_source)
 }
 
 /// Push (top-down) a level instead of pulling when the frontier's edges times this are fewer than
