@@ -337,10 +337,8 @@ fn batch<W: Word, const EACH: bool>(
         frontier[s as usize] |= W::bit(i);
         front_bits[s as usize / 64] |= 1 << (s % 64);
     }
-    let mut front_nodes = front_bits
-        .iter()
-        .map(|b| b.count_ones() as usize)
-        .sum::<usize>();
+    // The list holds each source node once (pushed when first seen): the nonzero frontier words.
+    let mut front_nodes = list.as_ref().map_or(0, Vec::len);
     // Edge entries of nodes not yet reached from every source (the pull's worst case).
     let mut open_edges = t.len() as u64
         - sources
@@ -378,16 +376,18 @@ fn batch<W: Word, const EACH: bool>(
                     }
                 }
             }
-            let mut tally = Tally::new();
+            // The touched list is the level's found list: the tally need not build another.
+            let mut tally = Tally {
+                found: None,
+                ..Tally::new()
+            };
+            next_bits.fill(0);
             for &w in &touched {
                 let new = next[w as usize];
                 seen[w as usize] |= new;
-                let closes = seen[w as usize] == full;
-                tally.record::<EACH>(w, new, closes, degree(w), usize::MAX);
-            }
-            next_bits.fill(0);
-            for &w in &touched {
                 next_bits[w as usize / 64] |= 1 << (w % 64);
+                let closes = seen[w as usize] == full;
+                tally.record::<EACH>(w, new, closes, degree(w), 0);
             }
             tally.found = Some(touched);
             tally
