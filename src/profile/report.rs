@@ -93,7 +93,7 @@ fn lenient_sketch<'de, D: serde::Deserializer<'de>>(
 
 /// Size and XXH3-64 of a file, read in blocks. Not through a memory map: a map's pages count
 /// in the resident set, and when the input is the store file being profiled (itself mapped) a
-/// second map doubled it (17 GB at a billion edges).
+/// second map doubled it (a 16.8 GiB peak at a billion edges).
 pub fn checksum(path: &Path) -> Result<(u64, String)> {
     use std::io::Read;
     let mut file = std::fs::File::open(path).map_err(|e| Error::io(path, "open", e))?;
