@@ -13,7 +13,9 @@ use rustc_hash::FxHashMap;
 
 use super::interval::z_for;
 use super::sample::mean_interval;
-use crate::exact::distances::{BatchBuffers, Word, effective_diameter, sources_batch_each};
+use crate::exact::distances::{
+    BatchBuffers, LevelCounts, Word, effective_diameter, sources_batch_each,
+};
 use crate::figure::{Figure, Interval};
 use crate::numeric::{mean_variance, percentile_interval};
 use crate::store::csr::Csr;
@@ -87,7 +89,7 @@ fn search(g: &Csr, sources: &[u32]) -> PerSource {
     fn run<W: Word>(
         g: &Csr,
         bufs: &mut BatchBuffers<W>,
-        each: &mut Vec<[u64; 128]>,
+        each: &mut LevelCounts,
         batch: &[u32],
     ) -> PerSource {
         sources_batch_each(g, batch, bufs, each);

@@ -124,7 +124,7 @@ word!(u128);
 
 /// Per-source counts by level, `[d - 1][i]` = nodes at distance d from source i (room for the
 /// widest word).
-pub(crate) type PerSource = Vec<[u64; 128]>;
+pub(crate) type LevelCounts = Vec<[u64; 128]>;
 
 /// The three word arrays a bit-parallel batch works in (one word per node), and a bit per node
 /// saying which frontier (and next) words are nonzero, reused across batches by each worker.
@@ -172,7 +172,7 @@ pub(crate) fn sources_batch_each<W: Word>(
     g: &Csr,
     sources: &[u32],
     bufs: &mut BatchBuffers<W>,
-    per_source: &mut PerSource,
+    per_source: &mut LevelCounts,
 ) -> (Vec<u64>, Vec<u32>) {
     per_source.clear();
     batch::<W, true>(g, sources, bufs, per_source)
@@ -304,7 +304,7 @@ fn batch<W: Word, const EACH: bool>(
     g: &Csr,
     sources: &[u32],
     bufs: &mut BatchBuffers<W>,
-    per_source: &mut PerSource,
+    per_source: &mut LevelCounts,
 ) -> (Vec<u64>, Vec<u32>) {
     let BatchBuffers {
         seen,
@@ -504,7 +504,7 @@ fn batch_pull<W: Word, const EACH: bool>(
     g: &Csr,
     sources: &[u32],
     bufs: &mut BatchBuffers<W>,
-    per_source: &mut PerSource,
+    per_source: &mut LevelCounts,
 ) -> (Vec<u64>, Vec<u32>) {
     let BatchBuffers {
         seen,

@@ -1,8 +1,9 @@
 //! Large working arrays on transparent huge pages. On Linux with THP in `madvise` mode (the
 //! common default), an allocation gets 2 MiB pages only if asked before it is first touched.
-//! Measured on the reference machine (4 GB array): scattered reads and updates 94–114 ns each
-//! on 4 KiB pages, 62–71 ns on huge pages, and first-touch zeroing 3–10 s against 2 s, because
-//! every 4 KiB page costs a fault and a TLB entry. BFS words, wedge tables and the fill's arrays
+//! Measured on the reference machine with a one-off program (4 GB array, not kept as a bench):
+//! scattered reads and updates 94–114 ns each on 4 KiB pages, 62–71 ns on huge pages, and
+//! first-touch zeroing 3–10 s against 2 s, because every 4 KiB page costs a fault and a TLB
+//! entry. BFS words, wedge tables and the fill's arrays
 //! are scattered-access arrays of that size at a billion edges.
 
 use bytemuck::Zeroable;
