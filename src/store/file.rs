@@ -207,7 +207,7 @@ impl StoreWriter {
     }
 
     /// Where the targets go, in order.
-    pub(crate) fn targets(&mut self) -> &mut dyn Write {
+    pub(crate) fn targets(&mut self) -> &mut (dyn Write + Send) {
         self.file.writer()
     }
 

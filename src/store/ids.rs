@@ -242,9 +242,13 @@ impl IntIndex {
         }
     }
 
-    /// The original ids, dropping the lookup tables.
-    pub fn into_ids(self) -> Vec<u64> {
-        self.ids
+    /// Dense index of an id, `None` when the input did not hold it.
+    #[inline]
+    pub(crate) fn try_get(&self, id: u64) -> Option<u32> {
+        match self.rank.get(id as usize) {
+            Some(&r) => (r != u32::MAX).then_some(r),
+            None => self.sparse.get(&id).copied(),
+        }
     }
 }
 

@@ -1,27 +1,34 @@
 //! The build on disk, for graphs whose adjacency would not fit the memory budget.
 //!
-//! The fill pass hands each worker's half-edges (`source << 32 | target` keys) to a buffer sized
-//! from the budget; a full buffer is sorted and written to the scratch folder as a run. One
-//! k-way merge then streams every run, in key order and without repeats, straight into the
-//! targets section of a store file, counting each node's list on the way (the offsets). This
-//! is the external merge sort (Knuth, *The Art of Computer Programming* vol. 3, 2nd ed. 1998,
-//! §5.4.1, multiway merging with a priority queue). The result is the same sorted, deduplicated
-//! adjacency the in-memory fill makes, so the store is the same byte for byte.
+//! Workers hand their half-edges (`source << 32 | target` keys) to buffers sized from the
+//! budget; a full buffer is sorted and written to the scratch folder as a run, keeping every
+//! 1,024th key in memory. The merge then cuts the nodes into buckets whose keys fit memory
+//! (their counts are known from the first pass), reads each bucket's slice of every run (the
+//! kept keys say where it lies), places the keys by node with a counting sort and sorts each
+//! node's short list, and writes the buckets in node order straight into the targets section of
+//! a store file, counting each node's list on the way (the offsets). It is an external sort by
+//! distribution over sorted runs (Knuth, *The Art of Computer Programming* vol. 3, 2nd ed.
+//! 1998, §5.4, external sorting; §5.2.5, distribution sorting): no heap, no limit on open
+//! files, and the buckets are independent, so the workers place them side by side. The result is
+//! the same sorted, deduplicated adjacency the in-memory fill makes, so the store is the same
+//! byte for byte.
 //!
 //! Entries where a node is written first (front) and second (back) go to separate runs, as in
 //! the in-memory fill, so the merge can count distinct directed pairs (repeats against
 //! reciprocal pairs) without a flag bit the 64-bit key has no room for.
 
-use std::cmp::Reverse;
-use std::collections::BinaryHeap;
 use std::fs::File;
-use std::io::{Read, Write};
+use std::io::Write;
 use std::path::{Path, PathBuf};
 use std::sync::Mutex;
-use std::sync::atomic::{AtomicU64, AtomicUsize, Ordering::Relaxed};
+use std::sync::atomic::{AtomicBool, AtomicU64, AtomicUsize, Ordering::Relaxed};
+
+use rayon::prelude::*;
 
 use crate::outfile::Leftover;
 use crate::progress::{Progress, Unit};
+use crate::store::graph::NodeIds;
+use crate::store::ids::IntIndex;
 
 /// A private folder inside the scratch directory, removed with everything in it when dropped,
 /// and by the interrupt handler (it is registered as a leftover).
@@ -89,6 +96,33 @@ struct Run {
     path: PathBuf,
     keys: u64,
     front: bool,
+    /// Every `SAMPLE`-th key, to find a key range's span without reading the run.
+    samples: Vec<u64>,
+}
+
+/// One key in this many is kept in memory per run (8 bytes per 8 KiB of run).
+const SAMPLE: usize = 1024;
+
+impl Run {
+    /// Positions `[start, end)` that hold every key of `[lo, hi)` (and at most a sample's width
+    /// more at either end).
+    fn span(&self, lo: u64, hi: Option<u64>) -> (u64, u64) {
+        // Keys at or before sample j - 1 are below lo when that sample is.
+        let below = self.samples.partition_point(|&k| k < lo);
+        let start = if below == 0 {
+            0
+        } else {
+            ((below - 1) * SAMPLE + 1) as u64
+        };
+        let end = match hi {
+            None => self.keys,
+            // Keys at or after sample j are at or above hi when that sample is.
+            Some(hi) => {
+                (self.samples.partition_point(|&k| k < hi) as u64 * SAMPLE as u64).min(self.keys)
+            }
+        };
+        (start.min(end), end)
+    }
 }
 
 /// Collects the runs that the fill workers write.
@@ -100,6 +134,12 @@ pub(crate) struct Spiller {
     failure: Mutex<Option<std::io::Error>>,
     next: AtomicUsize,
     keys: AtomicU64,
+    /// Set when the runs will not be used (a spill begun before the sizes were known, given up):
+    /// workers stop adding keys.
+    given_up: AtomicBool,
+    /// When set, a run is only written while the scratch disk keeps this many bytes free beyond
+    /// the run and an estimate of the store (checked before each run; see `give_up`).
+    guard_free: Option<u64>,
 }
 
 /// One worker's buffers.
@@ -112,6 +152,9 @@ pub(crate) struct SpillBuf {
 impl SpillBuf {
     /// Add the edge lines of `batch` (dense indices, no self-loops); false once writing failed.
     pub(crate) fn edges(&mut self, batch: &[(u32, u32)], sp: &Spiller) -> bool {
+        if sp.given_up() {
+            return true;
+        }
         if self.front.capacity() == 0 {
             // Exactly the budgeted size: growth by doubling could take nearly twice that.
             self.front
@@ -130,8 +173,14 @@ impl SpillBuf {
     }
 
     /// Add one edge line.
+    #[inline]
     pub(crate) fn edge(&mut self, u: u32, v: u32, sp: &Spiller) -> bool {
-        self.edges(&[(u, v)], sp)
+        if self.front.len() + 1 >= sp.keys_per_buffer.min(self.front.capacity()) {
+            return self.edges(&[(u, v)], sp);
+        }
+        self.front.push(key(u, v));
+        self.back.push(key(v, u));
+        true
     }
 }
 
@@ -156,6 +205,41 @@ impl Spiller {
             failure: Mutex::new(None),
             next: AtomicUsize::new(0),
             keys: AtomicU64::new(0),
+            given_up: AtomicBool::new(false),
+            guard_free: None,
+        }
+    }
+
+    /// A spiller that gives up (see [`Spiller::given_up`]) rather than let its runs leave less
+    /// than `keep_free` bytes on the scratch disk beside the store they will make.
+    pub(crate) fn guarded(scratch: Scratch, keys_per_buffer: usize, keep_free: u64) -> Self {
+        Spiller {
+            guard_free: Some(keep_free),
+            ..Spiller::new(scratch, keys_per_buffer)
+        }
+    }
+
+    /// Stop taking keys; the runs are removed with the scratch folder.
+    pub(crate) fn give_up(&self) {
+        self.given_up.store(true, Relaxed);
+    }
+
+    /// Whether the runs were given up on.
+    pub(crate) fn given_up(&self) -> bool {
+        self.given_up.load(Relaxed)
+    }
+
+    /// With a guard: whether writing `keys` more keys leaves the room it promises. The store
+    /// is estimated at 6 bytes a key (4 for the target, 2 for the per-node arrays at a mean
+    /// degree of 8); the check before the merge uses the real sizes.
+    fn room_for(&self, keys: u64) -> bool {
+        let Some(keep) = self.guard_free else {
+            return true;
+        };
+        let after = self.keys.load(Relaxed) + keys;
+        match usable_space(self.scratch.path()) {
+            Ok(free) => free.saturating_sub(keep) >= keys * 8 + after * 6,
+            Err(_) => false,
         }
     }
 
@@ -172,6 +256,12 @@ impl Spiller {
             buf.front.clear();
             buf.back.clear();
             return false;
+        }
+        if self.given_up() || !self.room_for((buf.front.len() + buf.back.len()) as u64) {
+            self.give_up();
+            buf.front = Vec::new();
+            buf.back = Vec::new();
+            return true;
         }
         for (keys, front) in [(&mut buf.front, true), (&mut buf.back, false)] {
             if keys.is_empty() {
@@ -204,6 +294,7 @@ impl Spiller {
                     path,
                     keys: keys.len() as u64,
                     front,
+                    samples: keys.iter().step_by(SAMPLE).copied().collect(),
                 });
             keys.clear();
         }
@@ -238,206 +329,409 @@ impl Spiller {
         self.keys.load(Relaxed)
     }
 
-    /// Merge every run into `out` as the targets of a graph on `n` nodes; the runs open at once
-    /// share `read_bytes` of read buffers (4 KiB to 8 MiB each), and each is deleted once merged.
+    /// Merge every run into `out` as the targets of a graph whose node `i` has `raw_degree[i]`
+    /// keys (edge-line ends, repeats included); `labels` says how keys name nodes. Uses about
+    /// `memory` bytes; the runs are removed with the scratch folder afterwards.
+    ///
+    /// The nodes are cut into buckets of consecutive nodes whose keys fit the memory; each
+    /// bucket reads its slice of every run (found through the runs' samples), places the keys
+    /// by node with a counting sort and sorts each node's short list. Buckets are independent,
+    /// so the workers take one each, and they are written in node order.
     pub(crate) fn merge(
         self,
-        n: usize,
-        out: &mut dyn Write,
-        read_bytes: u64,
+        raw_degree: &[u32],
+        labels: Labels<'_>,
+        out: &mut (dyn Write + Send),
+        memory: u64,
         progress: &dyn Progress,
     ) -> std::io::Result<Merged> {
         if let Some(e) = self.take_failure() {
             return Err(e);
         }
-        let mut runs = std::mem::take(&mut *self.runs.lock().unwrap_or_else(|p| p.into_inner()));
+        let runs = std::mem::take(&mut *self.runs.lock().unwrap_or_else(|p| p.into_inner()));
         let total: u64 = runs.iter().map(|r| r.keys).sum();
-        let run_bytes = total * 8;
-        let written = runs.len() as u64;
-        let open_at_once = runs.len().clamp(1, FAN_IN) as u64;
-        let read_keys = (read_bytes / 8 / open_at_once).clamp(512, 1 << 20) as usize;
-        // More runs than files open at once: merge groups of one kind into longer runs first.
-        while runs.len() > FAN_IN {
-            progress.stage("merging runs (a pass)", None, Unit::Items);
-            runs = self.merge_pass(runs, read_keys)?;
-        }
+        let n = raw_degree.len();
+        let threads = rayon::current_num_threads().max(1);
+        // Per key in a bucket: the key (8), its placed copy (8) and the output target (4); one
+        // window's buckets are placed while the last one's are written.
+        let cap = (memory / (threads as u64 * 2 * 20)).max(1 << 10);
+        let buckets = buckets(raw_degree, cap);
         progress.stage("merging runs", Some(total), Unit::Items);
-        let mut merge = KWay::open(&runs, read_keys)?;
-        let mut counts: Vec<u64> = super::pages::zeroed(n + 1);
-        let mut block: Vec<u32> = Vec::with_capacity(1 << 18);
-        let mut last = u64::MAX;
-        let mut last_has_front = false;
+        let mut offsets: Vec<u64> = super::pages::zeroed(n + 1);
         let mut directed_pairs = 0u64;
-        let mut done = 0u64;
-        while let Some((k, front)) = merge.next()? {
-            if k != last {
-                last = k;
-                last_has_front = false;
-                let (u, v) = ((k >> 32) as usize, k as u32);
-                if u >= n || v as usize >= n {
-                    return Err(std::io::Error::other(format!(
-                        "a run holds the pair ({u}, {v}) outside {n} nodes"
-                    )));
-                }
-                counts[u + 1] += 1;
-                block.push(v);
-                if block.len() == block.capacity() {
-                    out.write_all(bytemuck::cast_slice(&block))?;
-                    block.clear();
-                }
+        let pads = Mutex::new(Vec::new());
+        let mut pending: Vec<(Bucket, Placed)> = Vec::new();
+        let mut at = 0;
+        loop {
+            if crate::outfile::interrupted() {
+                return Err(std::io::ErrorKind::Interrupted.into());
             }
-            if front && !last_has_front {
-                last_has_front = true;
-                directed_pairs += 1;
+            let mut end = at;
+            while end < buckets.len() && end - at < threads && buckets[end].keys <= cap {
+                end += 1;
             }
-            done += 1;
-            if done.is_multiple_of(1 << 22) {
-                progress.advance(1 << 22);
+            // Place the next window while the last one is written.
+            let (placed, written) = rayon::join(
+                || {
+                    buckets[at..end]
+                        .par_iter()
+                        .map(|b| place(&runs, *b, n, &labels, &pads))
+                        .collect::<std::io::Result<Vec<Placed>>>()
+                },
+                || write_placed(&pending, out, &mut offsets),
+            );
+            directed_pairs += written?;
+            for (b, p) in pending.drain(..) {
+                progress.advance(b.keys);
+                pads.lock()
+                    .unwrap_or_else(|p| p.into_inner())
+                    .push(Pad::recycle(p));
+            }
+            pending.extend(buckets[at..end].iter().copied().zip(placed?));
+            at = end;
+            if at == buckets.len() {
+                directed_pairs += write_placed(&pending, out, &mut offsets)?;
+                break;
+            }
+            if buckets[at].keys > cap {
+                // One node whose lists alone are over the cap: written straight out, in turn.
+                directed_pairs += write_placed(&pending, out, &mut offsets)?;
+                pending.clear();
+                let b = buckets[at];
+                let (count, pairs) = one_large_node(&runs, b, n, &labels, out)?;
+                offsets[b.lo + 1] = count;
+                directed_pairs += pairs;
+                progress.advance(b.keys);
+                at += 1;
             }
         }
-        out.write_all(bytemuck::cast_slice(&block))?;
         for u in 0..n {
-            counts[u + 1] += counts[u];
+            offsets[u + 1] += offsets[u];
         }
         progress.finish();
         Ok(Merged {
-            offsets: counts,
+            offsets,
             directed_pairs,
-            runs: written,
-            run_bytes,
+            runs: runs.len() as u64,
+            run_bytes: total * 8,
         })
     }
-
-    /// One intermediate pass: each group of up to `FAN_IN` runs of the same kind (front or
-    /// back) becomes one run, repeats dropped (distinct keys are all the final merge counts).
-    fn merge_pass(&self, runs: Vec<Run>, read_keys: usize) -> std::io::Result<Vec<Run>> {
-        let (front, back): (Vec<Run>, Vec<Run>) = runs.into_iter().partition(|r| r.front);
-        let mut out = Vec::new();
-        for kind in [front, back] {
-            let mut kind = kind.into_iter().peekable();
-            while kind.peek().is_some() {
-                let group: Vec<Run> = kind.by_ref().take(FAN_IN).collect();
-                if group.len() == 1 {
-                    out.extend(group);
-                    continue;
-                }
-                let is_front = group[0].front;
-                if crate::outfile::interrupted() {
-                    return Err(std::io::ErrorKind::Interrupted.into());
-                }
-                let path = self
-                    .scratch
-                    .path()
-                    .join(format!("run-{:06}", self.next.fetch_add(1, Relaxed)));
-                let mut w = std::io::BufWriter::with_capacity(1 << 20, File::create(&path)?);
-                let mut merge = KWay::open(&group, read_keys)?;
-                let mut last = u64::MAX;
-                let mut keys = 0u64;
-                while let Some((k, _)) = merge.next()? {
-                    if k != last {
-                        w.write_all(&k.to_le_bytes())?;
-                        keys += 1;
-                        last = k;
-                    }
-                }
-                w.flush()?;
-                out.push(Run {
-                    path,
-                    keys,
-                    front: is_front,
-                });
-            }
-        }
-        Ok(out)
-    }
 }
 
-/// Most runs merged at once: each holds an open file, and processes commonly may open 1,024.
-const FAN_IN: usize = 256;
-
-/// A k-way merge of runs through a binary heap of their next keys.
-struct KWay {
-    readers: Vec<RunReader>,
-    heap: BinaryHeap<Reverse<(u64, u32)>>,
+/// Write placed buckets' targets and set their nodes' counts; returns their distinct pairs.
+fn write_placed(
+    placed: &[(Bucket, Placed)],
+    out: &mut (dyn Write + Send),
+    offsets: &mut [u64],
+) -> std::io::Result<u64> {
+    let mut pairs = 0;
+    for (b, p) in placed {
+        out.write_all(bytemuck::cast_slice(&p.targets))?;
+        for (i, &c) in p.counts.iter().enumerate() {
+            offsets[b.lo + 1 + i] = c as u64;
+        }
+        pairs += p.directed_pairs;
+    }
+    Ok(pairs)
 }
 
-impl KWay {
-    fn open(runs: &[Run], read_keys: usize) -> std::io::Result<Self> {
-        let mut readers = runs
-            .iter()
-            .map(|r| RunReader::open(r, read_keys))
-            .collect::<std::io::Result<Vec<_>>>()?;
-        let mut heap = BinaryHeap::with_capacity(readers.len());
-        for (i, r) in readers.iter_mut().enumerate() {
-            if let Some(k) = r.next()? {
-                heap.push(Reverse((k, i as u32)));
-            }
+/// How the keys of the runs name nodes.
+pub(crate) enum Labels<'a> {
+    /// By dense index already.
+    Dense,
+    /// By original integer id, the ids being `first, first + 1, …`.
+    Offset { first: u64, len: usize },
+    /// By original integer id (each at most `u32::MAX`), ranked through the index. Dense indices
+    /// follow the ids' order, so runs sorted by id are sorted by index too.
+    Raw { index: &'a IntIndex, ids: &'a [u64] },
+}
+
+impl<'a> Labels<'a> {
+    /// Keys that carry the original integer ids of a graph with these ids and this index.
+    pub(crate) fn of_ints(index: &'a IntIndex, ids: &'a NodeIds) -> Self {
+        match ids {
+            NodeIds::Range { first, len } => Labels::Offset {
+                first: *first,
+                len: *len,
+            },
+            NodeIds::Ints(v) => Labels::Raw { index, ids: v },
+            // Text ids never reach runs by label.
+            NodeIds::Text { .. } => Labels::Dense,
         }
-        Ok(KWay { readers, heap })
     }
 
-    /// The smallest key left and whether its run is a front run. A run read to its end is
-    /// deleted at once, giving its disk space back.
+    /// The label keys carry for dense node `i`.
+    fn of(&self, i: usize) -> u64 {
+        match self {
+            Labels::Dense => i as u64,
+            Labels::Offset { first, .. } => first + i as u64,
+            Labels::Raw { ids, .. } => ids[i],
+        }
+    }
+
+    /// The dense index of a label; `None` for one the graph does not hold.
     #[inline]
-    fn next(&mut self) -> std::io::Result<Option<(u64, bool)>> {
-        let Some(mut top) = self.heap.peek_mut() else {
-            return Ok(None);
-        };
-        let Reverse((k, i)) = *top;
-        let r = &mut self.readers[i as usize];
-        let front = r.front;
-        match r.next()? {
-            Some(next) => *top = Reverse((next, i)),
-            None => {
-                std::collections::binary_heap::PeekMut::pop(top);
-                let _ = std::fs::remove_file(&r.path);
-            }
+    fn dense(&self, label: u32) -> Option<u32> {
+        match self {
+            Labels::Dense => Some(label),
+            Labels::Offset { first, len } => (label as u64)
+                .checked_sub(*first)
+                .filter(|&d| d < *len as u64)
+                .map(|d| d as u32),
+            Labels::Raw { index, .. } => index.try_get(label as u64),
         }
-        Ok(Some((k, front)))
     }
 }
 
-/// Reads one run's keys a block at a time.
-struct RunReader {
-    file: File,
-    path: PathBuf,
-    buf: Vec<u64>,
-    pos: usize,
-    len: usize,
-    left: u64,
-    front: bool,
+fn unknown(label: u32) -> std::io::Error {
+    std::io::Error::other(format!(
+        "a run holds the node {label}, which no edge line named"
+    ))
 }
 
-impl RunReader {
-    fn open(run: &Run, block: usize) -> std::io::Result<Self> {
-        Ok(RunReader {
-            file: File::open(&run.path)?,
-            path: run.path.clone(),
-            buf: vec![0; block.min(run.keys as usize).max(1)],
-            pos: 0,
-            len: 0,
-            left: run.keys,
-            front: run.front,
-        })
-    }
+/// Consecutive nodes `lo..hi` whose runs hold `keys` keys.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+struct Bucket {
+    lo: usize,
+    hi: usize,
+    keys: u64,
+}
 
-    #[inline]
-    fn next(&mut self) -> std::io::Result<Option<u64>> {
-        if self.pos == self.len {
-            if self.left == 0 {
-                return Ok(None);
-            }
-            let take = (self.buf.len() as u64).min(self.left) as usize;
-            self.file
-                .read_exact(bytemuck::cast_slice_mut(&mut self.buf[..take]))?;
-            self.left -= take as u64;
-            self.pos = 0;
-            self.len = take;
+/// Cut the nodes into buckets of at most `cap` keys; a node over the cap has a bucket alone.
+fn buckets(raw_degree: &[u32], cap: u64) -> Vec<Bucket> {
+    let mut out = Vec::new();
+    let mut b = Bucket {
+        lo: 0,
+        hi: 0,
+        keys: 0,
+    };
+    for (i, &d) in raw_degree.iter().enumerate() {
+        if b.hi > b.lo && b.keys + d as u64 > cap {
+            out.push(b);
+            b = Bucket {
+                lo: i,
+                hi: i,
+                keys: 0,
+            };
         }
-        let k = self.buf[self.pos];
-        self.pos += 1;
-        Ok(Some(k))
+        b.hi = i + 1;
+        b.keys += d as u64;
     }
+    if b.hi > b.lo {
+        out.push(b);
+    }
+    out
+}
+
+/// The keys from `lo` up to (not including) `hi`; `hi` is `None` past the last node.
+fn key_range(b: Bucket, n: usize, labels: &Labels) -> (u64, Option<u64>) {
+    let lo = labels.of(b.lo) << 32;
+    let hi = (b.hi < n).then(|| labels.of(b.hi) << 32);
+    (lo, hi)
+}
+
+/// Append to `keys` the keys of `run` in `[lo, hi)`, reading only the span its samples allow.
+fn read_span(run: &Run, lo: u64, hi: Option<u64>, keys: &mut Vec<u64>) -> std::io::Result<()> {
+    let (start, end) = run.span(lo, hi);
+    if start >= end {
+        return Ok(());
+    }
+    let at = keys.len();
+    keys.resize(at + (end - start) as usize, 0);
+    read_at(
+        &File::open(&run.path)?,
+        bytemuck::cast_slice_mut(&mut keys[at..]),
+        start * 8,
+    )?;
+    // The span is a sample's width too wide at either end: keep the keys in range.
+    let got = &keys[at..];
+    let first = got.partition_point(|&k| k < lo);
+    let last = hi.map_or(got.len(), |hi| got.partition_point(|&k| k < hi));
+    keys.copy_within(at + first..at + last, at);
+    keys.truncate(at + last - first);
+    Ok(())
+}
+
+/// Fill `buf` from `file` at byte `offset`.
+fn read_at(file: &File, buf: &mut [u8], offset: u64) -> std::io::Result<()> {
+    #[cfg(unix)]
+    {
+        std::os::unix::fs::FileExt::read_exact_at(file, buf, offset)
+    }
+    #[cfg(not(unix))]
+    {
+        use std::io::{Read, Seek};
+        let mut f = file;
+        f.seek(std::io::SeekFrom::Start(offset))?;
+        f.read_exact(buf)
+    }
+}
+
+/// What one bucket holds once placed: each node's distinct targets, in order.
+struct Placed {
+    counts: Vec<u32>,
+    targets: Vec<u32>,
+    directed_pairs: u64,
+    /// The working arrays, handed back for the next bucket (fresh ones cost page faults).
+    keys: Vec<u64>,
+    placed: Vec<u64>,
+}
+
+/// Working arrays kept between buckets.
+#[derive(Default)]
+struct Pad {
+    keys: Vec<u64>,
+    placed: Vec<u64>,
+    targets: Vec<u32>,
+}
+
+impl Pad {
+    fn recycle(p: Placed) -> Pad {
+        Pad {
+            keys: p.keys,
+            placed: p.placed,
+            targets: p.targets,
+        }
+    }
+}
+
+/// Read one bucket's keys from every run, place them by node (counting sort), then sort and
+/// deduplicate each node's list.
+fn place(
+    runs: &[Run],
+    b: Bucket,
+    n: usize,
+    labels: &Labels,
+    pads: &Mutex<Vec<Pad>>,
+) -> std::io::Result<Placed> {
+    let (lo, hi) = key_range(b, n, labels);
+    let Pad {
+        mut keys,
+        mut placed,
+        mut targets,
+    } = pads
+        .lock()
+        .unwrap_or_else(|p| p.into_inner())
+        .pop()
+        .unwrap_or_default();
+    keys.clear();
+    for run in runs.iter().filter(|r| r.front) {
+        read_span(run, lo, hi, &mut keys)?;
+    }
+    let fronts = keys.len();
+    for run in runs.iter().filter(|r| !r.front) {
+        read_span(run, lo, hi, &mut keys)?;
+    }
+    let width = b.hi - b.lo;
+    // Each run's keys are in node order, so the source's index changes rarely: remember it.
+    let mut last = (u32::MAX, 0usize);
+    let mut slot = |k: u64| -> std::io::Result<usize> {
+        let src = (k >> 32) as u32;
+        if src != last.0 {
+            let d = labels.dense(src).ok_or_else(|| unknown(src))? as usize;
+            if !(b.lo..b.hi).contains(&d) {
+                return Err(unknown(src));
+            }
+            last = (src, d - b.lo);
+        }
+        Ok(last.1)
+    };
+    let mut starts = vec![0usize; width + 1];
+    for &k in &keys {
+        starts[slot(k)? + 1] += 1;
+    }
+    for i in 0..width {
+        starts[i + 1] += starts[i];
+    }
+    // Target label and a front flag in the low bit, so sorting puts a front entry last among
+    // its repeats.
+    placed.clear();
+    placed.resize(keys.len(), 0);
+    let mut fill = starts.clone();
+    for (j, &k) in keys.iter().enumerate() {
+        let s = slot(k)?;
+        placed[fill[s]] = (k & 0xffff_ffff) << 1 | (j < fronts) as u64;
+        fill[s] += 1;
+    }
+    let mut counts = vec![0u32; width];
+    targets.clear();
+    let mut directed_pairs = 0u64;
+    for i in 0..width {
+        let list = &mut placed[starts[i]..starts[i + 1]];
+        list.sort_unstable();
+        let before = targets.len();
+        let mut j = 0;
+        while j < list.len() {
+            let t = list[j] >> 1;
+            while j + 1 < list.len() && list[j + 1] >> 1 == t {
+                j += 1;
+            }
+            directed_pairs += list[j] & 1;
+            targets.push(t as u32);
+            j += 1;
+        }
+        counts[i] = (targets.len() - before) as u32;
+    }
+    // Relabel after the loop above: the lookups are independent, so their misses overlap.
+    for t in targets.iter_mut() {
+        *t = labels.dense(*t).ok_or_else(|| unknown(*t))?;
+    }
+    Ok(Placed {
+        counts,
+        targets,
+        directed_pairs,
+        keys,
+        placed,
+    })
+}
+
+/// One node whose keys alone exceed a bucket: its targets go through compressed bitmaps
+/// (Lemire et al., "Roaring bitmaps: implementation of an optimized software library", 2018),
+/// read a block at a time, and are written straight to `out`. Returns its distinct targets and
+/// distinct front pairs.
+fn one_large_node(
+    runs: &[Run],
+    b: Bucket,
+    n: usize,
+    labels: &Labels,
+    out: &mut (dyn Write + Send),
+) -> std::io::Result<(u64, u64)> {
+    let (lo, hi) = key_range(b, n, labels);
+    let mut all = roaring::RoaringBitmap::new();
+    let mut front = roaring::RoaringBitmap::new();
+    const BLOCK: u64 = 1 << 20;
+    let mut keys: Vec<u64> = Vec::new();
+    for run in runs {
+        let (start, end) = run.span(lo, hi);
+        let file = File::open(&run.path)?;
+        let mut at = start;
+        while at < end {
+            let take = BLOCK.min(end - at);
+            keys.clear();
+            keys.resize(take as usize, 0);
+            read_at(&file, bytemuck::cast_slice_mut(&mut keys), at * 8)?;
+            for &k in keys
+                .iter()
+                .filter(|&&k| k >= lo && hi.is_none_or(|hi| k < hi))
+            {
+                all.insert(k as u32);
+                if run.front {
+                    front.insert(k as u32);
+                }
+            }
+            at += take;
+        }
+    }
+    let mut block: Vec<u32> = Vec::with_capacity(1 << 16);
+    for t in all.iter() {
+        block.push(labels.dense(t).ok_or_else(|| unknown(t))?);
+        if block.len() == block.capacity() {
+            out.write_all(bytemuck::cast_slice(&block))?;
+            block.clear();
+        }
+    }
+    out.write_all(bytemuck::cast_slice(&block))?;
+    Ok((all.len(), front.len()))
 }
 
 #[cfg(test)]
@@ -460,7 +754,15 @@ mod tests {
         assert!(sp.spill(&mut a) && sp.spill(&mut b));
         assert_eq!(sp.keys(), 8);
         let mut out = Vec::new();
-        let m = sp.merge(3, &mut out, 0, &crate::progress::Quiet).unwrap();
+        let m = sp
+            .merge(
+                &[3, 4, 1],
+                Labels::Dense,
+                &mut out,
+                0,
+                &crate::progress::Quiet,
+            )
+            .unwrap();
         let targets: Vec<u32> = bytemuck::cast_slice(&out).to_vec();
         assert_eq!(m.offsets, vec![0, 1, 3, 4]);
         assert_eq!(targets, vec![1, 0, 2, 1]);
@@ -469,5 +771,81 @@ mod tests {
         assert!(m.runs >= 4);
         // The spiller is gone, so is its folder.
         assert!(!dir.exists());
+    }
+
+    /// The naive twin: each node's distinct targets from a set, and the distinct lines.
+    fn naive(n: usize, lines: &[(u32, u32)]) -> (Vec<u64>, Vec<u32>, u64) {
+        let mut lists = vec![std::collections::BTreeSet::new(); n];
+        for &(u, v) in lines {
+            lists[u as usize].insert(v);
+            lists[v as usize].insert(u);
+        }
+        let pairs: std::collections::BTreeSet<_> = lines.iter().collect();
+        let mut offsets = vec![0u64];
+        let mut targets = Vec::new();
+        for l in &lists {
+            targets.extend(l.iter().copied());
+            offsets.push(targets.len() as u64);
+        }
+        (offsets, targets, pairs.len() as u64)
+    }
+
+    #[test]
+    fn buckets_and_a_node_over_the_cap_merge_like_the_naive_twin() {
+        let mut x = 7u64;
+        let mut next = |m: u64| {
+            x ^= x << 13;
+            x ^= x >> 7;
+            x ^= x << 17;
+            x % m
+        };
+        let n = 600usize;
+        let mut lines = Vec::new();
+        for _ in 0..6000 {
+            let (u, v) = (next(n as u64) as u32, next(n as u64) as u32);
+            if u != v {
+                lines.push((u, v));
+            }
+        }
+        // Node 3 is a hub with far more keys than one bucket may hold (the floor is 1,024).
+        for _ in 0..5000 {
+            let v = next(n as u64) as u32;
+            if v != 3 {
+                lines.push(if v.is_multiple_of(2) { (3, v) } else { (v, 3) });
+            }
+        }
+        let (offsets, targets, pairs) = naive(n, &lines);
+        let mut raw_degree = vec![0u32; n];
+        for &(u, v) in &lines {
+            raw_degree[u as usize] += 1;
+            raw_degree[v as usize] += 1;
+        }
+        assert!(raw_degree[3] > 1024);
+        // Ids written as 1000 + index: the merge ranks them back.
+        let ids = NodeIds::Range {
+            first: 1000,
+            len: n,
+        };
+        let index = IntIndex::build(Vec::new(), None, u64::MAX).unwrap();
+        for labels in [Labels::Dense, Labels::of_ints(&index, &ids)] {
+            let shift = labels.of(0) as u32;
+            let parent = tempfile::tempdir().unwrap();
+            let sp = Spiller::new(Scratch::create(parent.path()).unwrap(), 700);
+            let mut buf = SpillBuf::default();
+            let relabelled: Vec<(u32, u32)> =
+                lines.iter().map(|&(u, v)| (u + shift, v + shift)).collect();
+            for chunk in relabelled.chunks(333) {
+                assert!(buf.edges(chunk, &sp));
+            }
+            assert!(sp.spill(&mut buf));
+            let mut out = Vec::new();
+            // Little memory: buckets at the 1,024-key floor.
+            let m = sp
+                .merge(&raw_degree, labels, &mut out, 0, &crate::progress::Quiet)
+                .unwrap();
+            assert_eq!(m.offsets, offsets);
+            assert_eq!(bytemuck::cast_slice::<u8, u32>(&out), targets.as_slice());
+            assert_eq!(m.directed_pairs, pairs);
+        }
     }
 }

@@ -4,6 +4,7 @@ use std::sync::atomic::{AtomicBool, AtomicU64, Ordering};
 
 use rayon::prelude::*;
 
+use super::on_disk::Choice;
 use super::{FILL_BATCH, Loader, Scanned};
 use crate::error::Result;
 use crate::progress::Unit;
@@ -12,7 +13,7 @@ use crate::read::source::Compression;
 use crate::store::graph::{Graph, NodeIds};
 use crate::store::ids::{IntIndex, IntTally};
 use crate::store::intake::{IdKind, StageName};
-use crate::store::spill::SpillBuf;
+use crate::store::spill::{SpillBuf, Spiller};
 
 /// What pass 1 over integer ids leaves for pass 2.
 struct IntPass {
@@ -20,6 +21,8 @@ struct IntPass {
     tallies: Vec<IntTally>,
     kept: Vec<(usize, Raw)>,
     scanned: Scanned,
+    /// Runs spilled during pass 1, keyed by original id, when it spilled and did not give up.
+    early: Option<Spiller>,
 }
 
 /// Most bytes of compressed input's edges kept between the passes (see `scan_ints`).
@@ -37,8 +40,10 @@ impl Loader<'_> {
 
     /// Pass 1 over integer ids; `None` when a text id turned up.
     fn scan_ints(&mut self) -> Result<Option<IntPass>> {
-        // Pass 1: integer ids (the fast path). Compressed input keeps its edges for pass 2.
-        let keep = self.src.compression != Compression::None;
+        // Pass 1: integer ids (the fast path). A large input spills its edges as runs for a
+        // build on disk; else compressed input keeps its edges for pass 2 while they are few.
+        let early = self.early_spiller();
+        let keep = self.src.compression != Compression::None && early.is_none();
         // Flat id arrays grow to the largest id seen, up to a cap tied to the input size and the
         // memory budget; larger ids go to a hash map.
         let per_worker = self.opts.memory_budget / 4 / (4 * self.threads as u64);
@@ -61,13 +66,14 @@ impl Loader<'_> {
                 tally: IntTally::new(cap),
                 outcomes: Vec::new(),
                 kept: Vec::new(),
+                spill: SpillBuf::default(),
             },
             |w, index, bytes, base| {
                 let keeping = keep && !over_budget.load(Ordering::Relaxed);
                 if !keeping {
                     w.kept = Vec::new();
                 }
-                let go_on = w.scan(index, bytes, base, &rules, keeping);
+                let go_on = w.scan(index, bytes, base, &rules, keeping, early.as_ref());
                 if keeping {
                     let added = w.kept.last().map_or(0, |(_, r)| r.bytes());
                     if kept_bytes.fetch_add(added, Ordering::Relaxed) + added > keep_limit {
@@ -82,14 +88,28 @@ impl Loader<'_> {
         let mut outcomes = Vec::new();
         let mut tallies = Vec::new();
         let mut kept = Vec::new();
+        let mut spills = Vec::new();
         for w in states {
             outcomes.extend(w.outcomes);
             tallies.push(w.tally);
             kept.extend(w.kept);
+            spills.push(w.spill);
         }
         let scanned = self.check(outcomes, info)?;
+        let stopped = scanned.outcomes.iter().any(|o| o.stopped);
+        // What the workers still hold becomes the last runs (sorted side by side). Runs that
+        // could not all be written are given up: the two-pass build then checks the room with
+        // the real sizes.
+        let early = early.filter(|sp| {
+            if !stopped && !sp.given_up() {
+                spills.into_par_iter().for_each(|mut b| {
+                    sp.spill(&mut b);
+                });
+            }
+            !stopped && !sp.given_up() && sp.take_failure().is_none()
+        });
         self.stage_done(StageName::Scan);
-        if scanned.outcomes.iter().any(|o| o.stopped) {
+        if stopped {
             // Only edge lists stop: Matrix Market entries are checked as integers before.
             return Ok(None);
         }
@@ -99,6 +119,7 @@ impl Loader<'_> {
             tallies,
             kept: if dropped { Vec::new() } else { kept },
             scanned,
+            early,
         }))
     }
 
@@ -109,12 +130,31 @@ impl Loader<'_> {
             tallies,
             kept,
             scanned,
+            early,
         } = pass;
 
         self.progress.stage("indexing ids", None, Unit::Items);
-        let index = IntIndex::build(tallies, self.mtx.as_ref().map(|h| h.rows), self.max_nodes())
-            .map_err(|f| self.index_fault(f))?;
+        let mut index =
+            IntIndex::build(tallies, self.mtx.as_ref().map(|h| h.rows), self.max_nodes())
+                .map_err(|f| self.index_fault(f))?;
         self.stage_done(StageName::IndexIds);
+
+        if let Some(spiller) = early {
+            // The runs are written: build on disk from them unless the sizes now say memory.
+            if let Choice::Disk { entries, .. } = self.choose(&index.raw_degree, true)? {
+                let ids = NodeIds::from_ints(std::mem::take(&mut index.ids));
+                let raw_degree = std::mem::take(&mut index.raw_degree);
+                return self.finish_on_disk(
+                    spiller,
+                    entries,
+                    ids,
+                    Some(&index),
+                    IdKind::Integer,
+                    scanned,
+                    &raw_degree,
+                );
+            }
+        }
 
         let sink = self.plan_fill(&index.raw_degree)?;
         if keep {
@@ -179,8 +219,8 @@ impl Loader<'_> {
             sink.drain(bufs);
         }
         self.stage_done(StageName::Fill);
-        let ids = NodeIds::from_ints(index.into_ids());
-        self.finish_sink(sink, ids, IdKind::Integer, scanned)
+        let ids = NodeIds::from_ints(std::mem::take(&mut index.ids));
+        self.finish_sink(sink, ids, IdKind::Integer, scanned, &index.raw_degree)
     }
 }
 
@@ -223,6 +263,8 @@ struct IntWorker {
     tally: IntTally,
     outcomes: Vec<ChunkOutcome>,
     kept: Vec<(usize, Raw)>,
+    /// This worker's buffers of the early runs.
+    spill: SpillBuf,
 }
 
 impl IntWorker {
@@ -233,14 +275,27 @@ impl IntWorker {
         base: u64,
         rules: &ScanRules,
         keep: bool,
+        early: Option<&Spiller>,
     ) -> bool {
         let mut raw = Raw::Narrow(Vec::new());
         let tally = &mut self.tally;
+        let spill = &mut self.spill;
         let outcome = scan::scan_chunk(index, bytes, base, rules, |a, b| match (a.int, b.int) {
             (Some(a), Some(b)) => {
                 tally.edge(a, b);
-                if keep && a != b {
-                    raw.push(a, b);
+                if a != b {
+                    if keep {
+                        raw.push(a, b);
+                    }
+                    if let Some(sp) = early {
+                        if (a | b) <= u32::MAX as u64 {
+                            // A failed write is kept by the spiller, which is then given up.
+                            spill.edge(a as u32, b as u32, sp);
+                        } else {
+                            // Keys hold two 32-bit ids: wider ones take the two-pass build.
+                            sp.give_up();
+                        }
+                    }
                 }
                 true
             }

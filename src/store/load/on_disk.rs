@@ -7,11 +7,13 @@ use rayon::prelude::*;
 
 use super::{BYTES_PER_NODE, BuildChoice, Loader, Scanned, check_budget};
 use crate::error::{Error, Result};
+use crate::read::source::Compression;
 use crate::store::file::{self, StoreWriter};
 use crate::store::fill::Filler;
 use crate::store::graph::{Graph, NodeIds};
+use crate::store::ids::IntIndex;
 use crate::store::intake::{DiskBuild, IdKind, StageName};
-use crate::store::spill::{Scratch, SpillBuf, Spiller, usable_space};
+use crate::store::spill::{Labels, Scratch, SpillBuf, Spiller, usable_space};
 
 /// The fill pass's destination.
 pub(super) enum Sink {
@@ -72,34 +74,38 @@ const RUN_MEMORY_MAX: u64 = 1 << 30;
 /// on disk against 113–126 s and 4.9 GB in memory; on 1e9 edges 4.8 min and 3.4 GB on disk.
 const DISK_FROM: u64 = 3 << 30;
 
+/// Where the adjacency goes, once the raw degrees are known.
+pub(super) enum Choice {
+    Memory,
+    Disk {
+        /// Keys each worker's front (and back) buffer holds.
+        keys_per_buffer: usize,
+        /// Keys the runs hold in all (two per loop-free edge line).
+        entries: u64,
+    },
+}
+
+/// Text bytes a compressed input is guessed to hold per byte on disk, to decide before the
+/// first pass whether it spills runs (edge lists compress about 3:1; the guess only sets
+/// whether the text is parsed once or twice, never the result).
+const GUESSED_RATIO: u64 = 3;
+
 impl Loader<'_> {
     /// Choose the fill's destination from the raw degrees: memory when the adjacency under
     /// construction fits the budget and is smaller than [`DISK_FROM`] (or the disk lacks the
-    /// room, or the user asked for memory), else disk.
-    pub(super) fn plan_fill(&self, raw_degree: &[u32]) -> Result<Sink> {
+    /// room, or the user asked for memory), else disk. With `runs_written`, the runs are on the
+    /// scratch disk already and only the store still needs room.
+    pub(super) fn choose(&self, raw_degree: &[u32], runs_written: bool) -> Result<Choice> {
         let entries: u64 = raw_degree.par_iter().map(|&d| d as u64).sum();
         let n = raw_degree.len() as u64;
         let per_node = (n + 1).saturating_mul(BYTES_PER_NODE);
         let in_memory = entries.saturating_mul(4).saturating_add(per_node);
         let what = || format!("building the adjacency of {n} nodes and {entries} edge entries");
-        let parent = self.scratch_parent();
-        let run_bytes = entries.saturating_mul(8);
-        let store_bytes = 4096 + (n + 1) * 8 + entries * 4 + n * 8;
-        let needs = match self.dest {
-            None => vec![(parent.clone(), run_bytes + store_bytes)],
-            Some(dest) => {
-                let dest_dir = parent_of(dest);
-                if same_device(&parent, &dest_dir) {
-                    vec![(parent.clone(), run_bytes + store_bytes)]
-                } else {
-                    vec![(parent.clone(), run_bytes), (dest_dir, store_bytes)]
-                }
-            }
-        };
+        let needs = self.disk_needs(n, entries, runs_written);
         match self.opts.build {
             BuildChoice::Memory => {
                 check_budget(&self.input.path, self.opts, what(), in_memory)?;
-                return Ok(Sink::Memory(Filler::new(raw_degree)));
+                return Ok(Choice::Memory);
             }
             // Large adjacencies build faster and far leaner on disk (sorting replaces scattered
             // writes), so auto takes the disk for them when it has the room.
@@ -107,7 +113,7 @@ impl Loader<'_> {
                 if in_memory <= self.opts.memory_budget
                     && (in_memory < DISK_FROM || !self.has_space(&needs)) =>
             {
-                return Ok(Sink::Memory(Filler::new(raw_degree)));
+                return Ok(Choice::Memory);
             }
             _ => {}
         }
@@ -118,21 +124,97 @@ impl Loader<'_> {
             format!("even built on disk, the per-node arrays of {n} nodes"),
             per_node,
         )?;
-        let budget = self.opts.memory_budget;
-        let reserve = RESERVE.min(budget / 4);
-        let spare = budget
-            .saturating_sub(per_node + reserve)
-            .min(RUN_MEMORY_MAX);
-        // Each worker holds a front and a back buffer of 8-byte keys.
-        let keys_per_buffer = (spare / (self.threads as u64 * 2 * 8)).max(1024) as usize;
         for (dir, bytes) in &needs {
             self.check_space(dir, *bytes)?;
         }
-        let scratch = Scratch::create(&parent).map_err(|e| Error::io(&parent, "create in", e))?;
-        Ok(Sink::Disk {
-            spiller: Spiller::new(scratch, keys_per_buffer),
-            expected: entries,
+        let spare = self
+            .opts
+            .memory_budget
+            .saturating_sub(per_node + RESERVE.min(self.opts.memory_budget / 4))
+            .min(RUN_MEMORY_MAX);
+        Ok(Choice::Disk {
+            keys_per_buffer: self.keys_per_buffer(spare),
+            entries,
         })
+    }
+
+    /// Each worker holds a front and a back buffer of 8-byte keys within `spare` bytes.
+    fn keys_per_buffer(&self, spare: u64) -> usize {
+        (spare / (self.threads as u64 * 2 * 8)).max(1024) as usize
+    }
+
+    /// Room a build on disk needs, per folder: the runs (unless written already) and the store.
+    fn disk_needs(&self, n: u64, entries: u64, runs_written: bool) -> Vec<(PathBuf, u64)> {
+        let parent = self.scratch_parent();
+        let run_bytes = if runs_written {
+            0
+        } else {
+            entries.saturating_mul(8)
+        };
+        let store_bytes = 4096 + (n + 1) * 8 + entries * 4 + n * 8;
+        match self.dest {
+            None => vec![(parent, run_bytes + store_bytes)],
+            Some(dest) => {
+                let dest_dir = parent_of(dest);
+                if same_device(&parent, &dest_dir) {
+                    vec![(parent, run_bytes + store_bytes)]
+                } else {
+                    vec![(parent, run_bytes), (dest_dir, store_bytes)]
+                }
+            }
+        }
+    }
+
+    /// The fill pass's destination (see [`Loader::choose`]).
+    pub(super) fn plan_fill(&self, raw_degree: &[u32]) -> Result<Sink> {
+        match self.choose(raw_degree, false)? {
+            Choice::Memory => Ok(Sink::Memory(Filler::new(raw_degree))),
+            Choice::Disk {
+                keys_per_buffer,
+                entries,
+            } => {
+                let parent = self.scratch_parent();
+                let scratch =
+                    Scratch::create(&parent).map_err(|e| Error::io(&parent, "create in", e))?;
+                Ok(Sink::Disk {
+                    spiller: Spiller::new(scratch, keys_per_buffer),
+                    expected: entries,
+                })
+            }
+        }
+    }
+
+    /// Runs to spill during the first pass, when the input looks large enough to be built on
+    /// disk: the text is then parsed once. The keys carry the original integer ids (the dense
+    /// indices are not known yet); the merge ranks them. `None` when the build may be in memory,
+    /// or the scratch disk looks short of room for the guessed size (the second pass then
+    /// decides with the real sizes).
+    pub(super) fn early_spiller(&self) -> Option<Spiller> {
+        let text = match self.src.compression {
+            Compression::None => self.src.data.len() as u64,
+            _ => (self.src.data.len() as u64).saturating_mul(GUESSED_RATIO),
+        };
+        // About 16 bytes of text per edge line, 8 bytes of adjacency under construction.
+        let adjacency = text / 2;
+        match self.opts.build {
+            BuildChoice::Memory => return None,
+            BuildChoice::Auto if adjacency < DISK_FROM => return None,
+            _ => {}
+        }
+        // The runs take about the text's size (16 bytes a line), the store about half.
+        let parent = self.scratch_parent();
+        let free = usable_space(&parent).ok()?;
+        if free.saturating_sub(self.opts.scratch_keep_free) < text + text / 2 {
+            return None;
+        }
+        let budget = self.opts.memory_budget;
+        let spare = (budget / 4).min(RUN_MEMORY_MAX);
+        let scratch = Scratch::create(&parent).ok()?;
+        Some(Spiller::guarded(
+            scratch,
+            self.keys_per_buffer(spare),
+            self.opts.scratch_keep_free,
+        ))
     }
 
     /// The folder a build on disk works in: `--scratch`, else beside the store being made,
@@ -196,23 +278,33 @@ impl Loader<'_> {
         ids: NodeIds,
         id_kind: IdKind,
         scanned: Scanned,
+        raw_degree: &[u32],
     ) -> Result<Graph> {
         match sink {
             Sink::Memory(filler) => self.finish(filler, ids, id_kind, scanned),
             Sink::Disk { spiller, expected } => {
-                self.finish_on_disk(spiller, expected, ids, id_kind, scanned)
+                self.finish_on_disk(spiller, expected, ids, None, id_kind, scanned, raw_degree)
             }
         }
     }
 
-    fn finish_on_disk(
+    /// Merge the runs into a store file and map it. The runs' keys carry dense indices, or with
+    /// `by_id` the original integer ids.
+    #[allow(clippy::too_many_arguments)]
+    pub(super) fn finish_on_disk(
         mut self,
         spiller: Spiller,
         expected: u64,
         ids: NodeIds,
+        by_id: Option<&IntIndex>,
         id_kind: IdKind,
         scanned: Scanned,
+        raw_degree: &[u32],
     ) -> Result<Graph> {
+        let labels = match by_id {
+            Some(index) => Labels::of_ints(index, &ids),
+            None => Labels::Dense,
+        };
         let scratch_dir = spiller.scratch().to_path_buf();
         if let Some(e) = spiller.take_failure() {
             return Err(self.disk_fault(e, &scratch_dir, expected));
@@ -243,9 +335,9 @@ impl Loader<'_> {
         let spare = budget
             .saturating_sub((n as u64 + 1) * BYTES_PER_NODE)
             .min(RUN_MEMORY_MAX);
-        // The runs' read buffers share half of what the per-node arrays leave.
+        // The buckets in flight share what the per-node arrays leave.
         let merged = spiller
-            .merge(n, w.targets(), spare / 2, self.progress)
+            .merge(raw_degree, labels, w.targets(), spare, self.progress)
             .map_err(|e| self.disk_fault(e, &scratch_dir, expected))?;
         self.stage_done(StageName::SortAndMerge);
         let on_disk = DiskBuild {

@@ -71,11 +71,12 @@ impl Loader<'_> {
         )?;
         sink.drain(bufs);
         self.stage_done(StageName::Fill);
+        let raw_degree = index.raw_degree;
         let ids = NodeIds::Text {
             offsets: index.offsets.into(),
             bytes: index.bytes.into(),
         };
-        self.finish_sink(sink, ids, IdKind::Text, scanned)
+        self.finish_sink(sink, ids, IdKind::Text, scanned, &raw_degree)
     }
 
     /// The earliest of the pieces' first text ids, with its line in the whole text.
