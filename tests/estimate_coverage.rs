@@ -103,8 +103,20 @@ fn ring_lattice_estimates_converge_to_the_closed_forms() {
         .map(|h| h.min(n as u64 - h).div_ceil(k as u64 / 2))
         .sum::<u64>() as f64
         / (n - 1) as f64;
-    let e = wedges::estimate(&g, 2_000_000, 0.95, 8);
-    assert!((e.transitivity.value() - c).abs() < 0.002 && covers(&e.transitivity, c));
+    // Five seeds: every estimate within 0.002, and at least four of the five 95% intervals
+    // cover (a correct interval misses twice or more with probability 2.3%; one seed alone
+    // misses one time in twenty, as seed 8 does with wedges drawn sixteen at a time).
+    let mut covered = 0;
+    for seed in 8..13 {
+        let e = wedges::estimate(&g, 2_000_000, 0.95, seed);
+        assert!(
+            (e.transitivity.value() - c).abs() < 0.002,
+            "{:?}",
+            e.transitivity
+        );
+        covered += covers(&e.transitivity, c) as u32;
+    }
+    assert!(covered >= 4, "{covered} of 5 intervals cover {c}");
     let a = wedges::average_clustering(&g, 2_000_000, 0.95, 8);
     assert!((a.average_zeros.value() - c).abs() < 0.002);
     // Every node of a ring lattice is alike, so even a few sources give the exact mean.

@@ -7,6 +7,7 @@
 //! merged lines into repeats and reciprocal pairs. Peak memory is the raw region (8 bytes per
 //! edge line) plus per-node cursors; there is no edge vector.
 
+use crate::store::pages::prefetch;
 use std::sync::atomic::{AtomicU32, Ordering::Relaxed};
 
 use rayon::prelude::*;
@@ -177,19 +178,6 @@ impl Filler {
             directed_pairs,
         })
     }
-}
-
-#[inline(always)]
-fn prefetch<T>(r: &T) {
-    #[cfg(target_arch = "x86_64")]
-    // SAFETY: prefetching is a hint; the pointer comes from a live reference.
-    unsafe {
-        std::arch::x86_64::_mm_prefetch::<{ std::arch::x86_64::_MM_HINT_T0 }>(
-            r as *const T as *const i8,
-        );
-    }
-    #[cfg(not(target_arch = "x86_64"))]
-    let _ = r;
 }
 
 /// Merge two sorted lists into `out` without repeats; returns how many distinct values `a` had.
