@@ -6,7 +6,7 @@
 //! all triangles in large graphs, an experimental study", WEA 2005; Latapy, "Main-memory triangle
 //! computations for very large (sparse (power-law)) graphs", Theor. Comput. Sci. 407 (2008).
 
-use std::sync::atomic::{AtomicU64, Ordering::Relaxed};
+use std::sync::atomic::{AtomicU64, AtomicUsize, Ordering::Relaxed};
 
 use rayon::prelude::*;
 
@@ -36,25 +36,33 @@ fn oriented(g: &Csr) -> Csr {
 }
 
 /// Run `visit(stamp, u)` for every node u, in parallel, with N+(u) marked in a per-thread stamp
-/// array (`stamp[w] == u` exactly when w is in N+(u)), and add up what the visits return.
+/// array (`stamp[w] == u` exactly when w is in N+(u)), and add up what the visits return. One
+/// stamp array per thread, not per task: each is a node-sized array (400 MB at 1e8 nodes), and
+/// rayon's per-task state could hold several per thread at once. The threads take blocks of
+/// nodes from a shared counter, so the load balances; integer sums make the order irrelevant.
 fn over_stamped(dag: &Csr, visit: impl Fn(&[u32], u32) -> u64 + Sync) -> u64 {
+    const NODES: usize = 1024;
     let n = dag.node_count();
-    (0..n as u32)
+    let next = AtomicUsize::new(0);
+    (0..rayon::current_num_threads().clamp(1, n.div_ceil(NODES).max(1)))
         .into_par_iter()
-        .with_min_len(1024)
-        .map_init(
-            || {
-                let mut stamp = crate::store::pages::with_capacity(n);
-                stamp.resize(n, u32::MAX);
-                stamp
-            },
-            |stamp, u| {
-                for &w in dag.neighbors(u) {
-                    stamp[w as usize] = u;
+        .map(|_| {
+            let mut stamp: Vec<u32> = crate::store::pages::with_capacity(n);
+            stamp.resize(n, u32::MAX);
+            let mut sum = 0;
+            loop {
+                let start = next.fetch_add(NODES, Relaxed);
+                if start >= n {
+                    return sum;
                 }
-                visit(stamp, u)
-            },
-        )
+                for u in start as u32..(start + NODES).min(n) as u32 {
+                    for &w in dag.neighbors(u) {
+                        stamp[w as usize] = u;
+                    }
+                    sum += visit(&stamp, u);
+                }
+            }
+        })
         .sum()
 }
 

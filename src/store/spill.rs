@@ -483,6 +483,14 @@ impl<'a> Labels<'a> {
     }
 }
 
+/// The runs disagree with the first pass's counts: a key was lost or one came from elsewhere.
+fn miscounted(b: Bucket, read: u64) -> std::io::Error {
+    std::io::Error::other(format!(
+        "the runs hold {read} keys for nodes {}..{} where the first pass counted {}",
+        b.lo, b.hi, b.keys
+    ))
+}
+
 fn unknown(label: u32) -> std::io::Error {
     std::io::Error::other(format!(
         "a run holds the node {label}, which no edge line named"
@@ -622,6 +630,9 @@ fn place(
     for run in runs.iter().filter(|r| !r.front) {
         read_span(run, lo, hi, &mut keys)?;
     }
+    if keys.len() as u64 != b.keys {
+        return Err(miscounted(b, keys.len() as u64));
+    }
     let width = b.hi - b.lo;
     // Each run's keys are in node order, so the source's index changes rarely: remember it.
     let mut last = (u32::MAX, 0usize);
@@ -701,6 +712,7 @@ fn one_large_node(
     let mut front = roaring::RoaringBitmap::new();
     const BLOCK: u64 = 1 << 20;
     let mut keys: Vec<u64> = Vec::new();
+    let mut read = 0u64;
     for run in runs {
         let (start, end) = run.span(lo, hi);
         let file = File::open(&run.path)?;
@@ -714,6 +726,7 @@ fn one_large_node(
                 .iter()
                 .filter(|&&k| k >= lo && hi.is_none_or(|hi| k < hi))
             {
+                read += 1;
                 all.insert(k as u32);
                 if run.front {
                     front.insert(k as u32);
@@ -721,6 +734,9 @@ fn one_large_node(
             }
             at += take;
         }
+    }
+    if read != b.keys {
+        return Err(miscounted(b, read));
     }
     let mut block: Vec<u32> = Vec::with_capacity(1 << 16);
     for t in all.iter() {
@@ -771,6 +787,27 @@ mod tests {
         assert!(m.runs >= 4);
         // The spiller is gone, so is its folder.
         assert!(!dir.exists());
+    }
+
+    #[test]
+    fn runs_that_disagree_with_the_counts_are_an_error_not_a_short_list() {
+        let parent = tempfile::tempdir().unwrap();
+        let sp = Spiller::new(Scratch::create(parent.path()).unwrap(), 2);
+        let mut a = SpillBuf::default();
+        assert!(a.edges(&[(0, 1), (1, 2)], &sp));
+        assert!(sp.spill(&mut a));
+        // Node 1 has two keys, not three.
+        let e = sp
+            .merge(
+                &[1, 3, 1],
+                Labels::Dense,
+                &mut Vec::new(),
+                0,
+                &crate::progress::Quiet,
+            )
+            .err()
+            .unwrap();
+        assert!(e.to_string().contains("first pass counted"), "{e}");
     }
 
     /// The naive twin: each node's distinct targets from a set, and the distinct lines.
