@@ -715,6 +715,9 @@ fn one_large_node(
     let mut read = 0u64;
     for run in runs {
         let (start, end) = run.span(lo, hi);
+        if start >= end {
+            continue;
+        }
         let file = File::open(&run.path)?;
         let mut at = start;
         while at < end {

@@ -100,14 +100,15 @@ impl Loader<'_> {
         // What the workers still hold becomes the last runs (sorted side by side). Runs that
         // could not all be written are given up: the two-pass build then checks the room with
         // the real sizes.
-        let early = early.filter(|sp| {
-            if !stopped && !sp.given_up() {
+        let early = match early {
+            Some(sp) if !stopped && !sp.given_up() => {
                 spills.into_par_iter().for_each(|mut b| {
                     sp.spill(&mut b);
                 });
+                (!sp.given_up() && sp.take_failure().is_none()).then_some(sp)
             }
-            !stopped && !sp.given_up() && sp.take_failure().is_none()
-        });
+            _ => None,
+        };
         self.stage_done(StageName::Scan);
         if stopped {
             // Only edge lists stop: Matrix Market entries are checked as integers before.
