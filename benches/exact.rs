@@ -1,14 +1,17 @@
-//! Exact structure on generated graphs of 5 million edges: triangle counting (transitivity),
+//! Exact structure on generated graphs of 5 million edges: degree statistics with assortativity
+//! (against one plain pass), triangle counting (transitivity),
 //! single-source BFS (edges traversed per second), components, the iFUB diameter, and the rate
 //! of the bit-parallel all-pairs search that sizes the default exact budget.
 //!
 //! Run: `cargo bench --bench exact` (add `-- --quick` for 10x smaller graphs). Answers are
-//! checked: triangle totals against the per-node count, BFS against the reach of the component.
+//! checked: assortativity against a plain per-edge sum, triangle totals against the per-node
+//! count, BFS against the reach of the component.
 
 use std::time::Instant;
 
 use plumb::exact::bfs::Bfs;
 use plumb::exact::components::{components, induced};
+use plumb::exact::degrees;
 use plumb::exact::diameter;
 use plumb::exact::distances;
 use plumb::exact::triangles;
@@ -27,8 +30,42 @@ fn best<T>(reps: usize, mut f: impl FnMut() -> T) -> (T, f64) {
     (out.unwrap(), secs)
 }
 
+/// Assortativity the plain way, every edge end in turn (Newman 2002, eq. 4 over both directions).
+fn assortativity_plain(g: &Csr) -> Option<f64> {
+    let (mut jk, mut j, mut jj) = (0u128, 0u128, 0u128);
+    for u in 0..g.node_count() as u32 {
+        let du = g.degree(u) as u128;
+        for &v in g.neighbors(u) {
+            jk += du * g.degree(v) as u128;
+            j += du;
+            jj += du * du;
+        }
+    }
+    let ends = g.targets().len() as f64;
+    let mean = j as f64 / ends;
+    let var = jj as f64 / ends - mean * mean;
+    (var > 0.0).then(|| (jk as f64 / ends - mean * mean) / var)
+}
+
+/// One plain parallel pass over the adjacency: the floor for degree statistics.
+fn one_pass(g: &Csr) -> u64 {
+    use rayon::prelude::*;
+    (0..g.node_count() as u32)
+        .into_par_iter()
+        .map(|v| g.neighbors(v).iter().map(|&x| x as u64).sum::<u64>())
+        .sum()
+}
+
 fn bench(name: &str, g: &Csr) {
     let m = g.edge_count();
+    let (_, t_pass) = best(3, || one_pass(g));
+    let (deg, t_deg) = best(3, || degrees::degree_stats(g));
+    assert_eq!(deg.histogram.iter().sum::<u64>(), g.node_count() as u64);
+    let (fast, plain) = (deg.assortativity.unwrap(), assortativity_plain(g).unwrap());
+    assert!(
+        (fast - plain).abs() < 1e-9,
+        "{name}: assortativity {fast} against {plain}"
+    );
     let (tri, t_tri) = best(3, || triangles::total(g));
     let per = triangles::count(g);
     assert_eq!(per.total, tri, "{name}: totals disagree");
@@ -62,7 +99,7 @@ fn bench(name: &str, g: &Csr) {
     let ops = all_pairs_sample(&sub, batches);
     let rate = ops / t.elapsed().as_secs_f64();
     println!(
-        "{name:<34} {m:>9} edges | triangles {tri:>11} transitivity {:.6} in {t_tri:.3} s | \
+        "{name:<34} {m:>9} edges | degrees {t_deg:.3} s (one pass {t_pass:.3} s) | triangles {tri:>11} transitivity {:.6} in {t_tri:.3} s | \
          components {t_cc:.3} s | BFS {t_bfs:.4} s = {:.0} M edges/s | diameter {}..{} ({} BFS) {t_diam:.2} s | \
          all-pairs {:.2e} ops/s",
         3.0 * tri as f64 / wedges as f64,
