@@ -200,7 +200,7 @@ fn check_budget(path: &Path, opts: &LoadOptions, what: String, needed: u64) -> R
 }
 
 /// Edges parsed before they are written out together.
-const FILL_BATCH: usize = 2048;
+const FILL_BATCH: usize = 8192;
 
 /// How much text is looked at up front (banner, header guess).
 const PEEK: usize = 1 << 20;

@@ -38,18 +38,6 @@ impl Sink {
         }
     }
 
-    /// Write one edge line.
-    #[inline]
-    pub(super) fn put_one(&self, buf: &mut SpillBuf, u: u32, v: u32) -> bool {
-        match self {
-            Sink::Memory(f) => {
-                f.edge(u, v);
-                true
-            }
-            Sink::Disk { spiller, .. } => buf.edge(u, v, spiller),
-        }
-    }
-
     /// Write what the workers' buffers still hold (sorted in parallel).
     pub(super) fn drain(&self, bufs: Vec<SpillBuf>) {
         if let Sink::Disk { spiller, .. } = self {

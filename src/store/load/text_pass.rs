@@ -1,7 +1,7 @@
 //! The text-id passes: any token is an id, kept verbatim; ids are ranked in sorted order so
 //! results never depend on threads.
 
-use super::{FirstTextId, Loader, Scanned};
+use super::{FILL_BATCH, FirstTextId, Loader, Scanned};
 use crate::error::{Result, excerpt};
 use crate::read::scan;
 use crate::store::graph::{Graph, NodeIds};
@@ -58,13 +58,20 @@ impl Loader<'_> {
         let (bufs, _) = self.each_piece(
             SpillBuf::default,
             |buf, i, bytes, base| {
+                // Batched like integer ids: the in-memory fill sorts each batch by node block.
                 let mut ok = true;
+                let mut dense: Vec<(u32, u32)> = Vec::with_capacity(FILL_BATCH);
                 scan::scan_chunk(i, bytes, base, &rules, |a, b| {
                     if a.raw != b.raw {
-                        ok &= sink.put_one(buf, index.get(a.raw), index.get(b.raw));
+                        dense.push((index.get(a.raw), index.get(b.raw)));
+                        if dense.len() == FILL_BATCH {
+                            ok &= sink.put(buf, &dense);
+                            dense.clear();
+                        }
                     }
                     ok
                 });
+                ok &= sink.put(buf, &dense);
                 ok
             },
             &scanned.outcomes,
