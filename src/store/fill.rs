@@ -33,6 +33,12 @@ const STAGING_MAX: u64 = 256 << 20;
 /// back of its region).
 const BACK: u32 = 1;
 
+/// Bytes the staging buffers take for a region of `entries` entries: an eighth of the region,
+/// at most [`STAGING_MAX`] (the build's memory estimate counts them).
+pub(crate) fn staging_bytes(entries: u64) -> u64 {
+    STAGING_MAX.min(entries * 4 / 8)
+}
+
 /// Shared, concurrently written arrays of the fill pass.
 pub struct Filler {
     offsets: Vec<u64>,
@@ -90,7 +96,7 @@ impl Filler {
             .clamp(1, 1 << 30);
         let shift = nodes.next_power_of_two().trailing_zeros();
         let blocks = n.div_ceil(1 << shift).max(1);
-        let stage_bytes = STAGING_MAX.min(acc * 4 / 8);
+        let stage_bytes = staging_bytes(acc);
         let stage_len = ((stage_bytes / 8) as usize / blocks).max(64);
         Filler {
             front: atomic_zeroed(n),

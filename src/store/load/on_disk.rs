@@ -87,7 +87,10 @@ impl Loader<'_> {
         let entries: u64 = raw_degree.par_iter().map(|&d| d as u64).sum();
         let n = raw_degree.len() as u64;
         let per_node = (n + 1).saturating_mul(BYTES_PER_NODE);
-        let in_memory = entries.saturating_mul(4).saturating_add(per_node);
+        let in_memory = entries
+            .saturating_mul(4)
+            .saturating_add(crate::store::fill::staging_bytes(entries))
+            .saturating_add(per_node);
         let what = || format!("building the adjacency of {n} nodes and {entries} edge entries");
         let needs = self.disk_needs(n, entries, runs_written);
         match self.opts.build {
