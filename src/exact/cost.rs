@@ -38,19 +38,17 @@ pub fn triangle_seconds(g: &Csr, rates: &Rates, threads: usize, probe: f64) -> f
     triangle_steps(g) * probe * rates.triangle_step_per_probe / threads.max(1) as f64
 }
 
-/// Predicted seconds of `draws` wedge or node draws on `g`: the measured rate while the store
-/// is near the size it was measured at (50M edges, 0.4 GB), slower in proportion to the store
-/// beyond it, up to 2x (each draw is a few scattered reads, and from about 1.6 GB every one of
-/// them misses cache and TLB; drawn sixteen at a time, their misses overlap: one at a time the
-/// 50M rate fell 2.5–5.6x short at 200M edges and the cap was 5x, grouped the sampled clustering
-/// of the 1e9 attachment store took 23.2 s against 57.6 s), plus the sampler's passes over the
-/// nodes (cumulative wedge counts, degree bins: 50 ns a node, fitted to the Watts–Strogatz 200M
-/// stage, where draws are few). Fitted with `cargo bench --bench planner` and the 1e9 store
-/// here; no source.
+/// Predicted seconds of `draws` wedge or node draws on `g`: the measured rate, whatever the
+/// store's size, plus the sampler's passes over the nodes (cumulative wedge counts, degree bins:
+/// 50 ns a node, fitted to the Watts–Strogatz 200M stage, where draws are few). Drawn one at a
+/// time, the 50M rate fell 2.5–5.6x short at 200M edges, and the prediction slowed in proportion
+/// to the store (up to 5x, then 2x). Drawn sixteen at a time, their misses overlap and that
+/// slowdown is gone: with the 2x it over-predicted the sampled clustering 2.63x on the 200M
+/// attachment graph (34.7 s against 13.2 s), 1.83x and 1.53x on the other two models, and 1.95x
+/// on the 1e9 store (38.7 s against 19.8 s). Fitted with `cargo bench --bench planner` and the
+/// 1e9 store here; no source.
 pub fn draw_seconds(g: &Csr, draws: f64, rates: &Rates, threads: usize) -> f64 {
-    let store = 8.0 * (g.edge_count() as f64 + g.node_count() as f64);
-    let slowdown = (store / 4.0e8).clamp(1.0, 2.0);
-    seconds(draws, rates.wedges, threads) * slowdown + g.node_count() as f64 * 5.0e-8
+    seconds(draws, rates.wedges, threads) + g.node_count() as f64 * 5.0e-8
 }
 
 /// Seconds one thread spends per step of forward triangle listing on `g`, sampled while
