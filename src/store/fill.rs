@@ -13,8 +13,8 @@
 //! their block's staging buffer, and a full buffer is written into its span in one go, under the
 //! block's lock, with plain loads and stores: the span and its counters stay in cache while it
 //! is written. Peak memory is the raw region (8 bytes per edge line), per-node counters (8 bytes
-//! a node) and the staging buffers (at most [`STAGING_MAX`] bytes, and a sixteenth of the
-//! region); there is no edge vector.
+//! a node) and the staging buffers ([`staging_bytes`]: an eighth of the region, at most
+//! [`STAGING_MAX`]); there is no edge vector.
 
 use std::sync::Mutex;
 use std::sync::atomic::{AtomicU32, Ordering::Relaxed};
@@ -172,7 +172,12 @@ impl Filler {
             if let Some(&(t, _)) = entries.get(i + AHEAD) {
                 let w = first + (t >> 1) as usize;
                 prefetch(&self.offsets[w]);
-                prefetch(&self.front[w]);
+                // The counter this entry will update: front or back.
+                prefetch(if t & BACK == 0 {
+                    &self.front[w]
+                } else {
+                    &self.back[w]
+                });
             }
             let u = first + (tag >> 1) as usize;
             let (lo, hi) = (self.offsets[u], self.offsets[u + 1]);
