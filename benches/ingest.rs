@@ -126,7 +126,8 @@ fn zstd_cli_seconds(path: &Path) -> Option<f64> {
     st.success().then(|| t.elapsed().as_secs_f64())
 }
 
-fn report(name: &str, path: &Path, text_bytes: usize, expect_m: u64, reps: usize) -> f64 {
+/// Seconds and peak heap over the store's size.
+fn report(name: &str, path: &Path, text_bytes: usize, expect_m: u64, reps: usize) -> (f64, f64) {
     let (g, secs, peak) = time_load(path, reps);
     assert_eq!(g.edge_count(), expect_m, "{name}: wrong edge count");
     let store = g.store_bytes() as f64;
@@ -141,7 +142,21 @@ fn report(name: &str, path: &Path, text_bytes: usize, expect_m: u64, reps: usize
         g.csr.targets().len() as f64 * 4.0 / g.edge_count() as f64,
         (g.csr.offsets().len() as f64 * 8.0 + g.ids.bytes() as f64) / g.node_count() as f64,
     );
-    secs
+    (secs, peak as f64 / store)
+}
+
+/// One line of the target table: the measured figure, the target and whether it is met.
+fn target(what: &str, measured: f64, unit: &str, goal: f64, at_least: bool) {
+    let met = if at_least {
+        measured >= goal
+    } else {
+        measured <= goal
+    };
+    println!(
+        "  {what:<44} {measured:>8.2} {unit:<5} target {} {goal} {unit:<5} {}",
+        if at_least { ">=" } else { "<=" },
+        if met { "met" } else { "NOT met" }
+    );
 }
 
 fn main() {
@@ -160,16 +175,18 @@ fn main() {
 
     let ring = ring_lattice(n, half_k);
     let (rand_text, rand_m) = random_pairs(n, m_rand, 42);
-    for (name, text, m) in [
-        ("ring-lattice (sorted)", &ring, n * half_k),
-        ("random pairs (unsorted)", &rand_text, rand_m),
+    // The build targets of this machine's scale issue, printed beside what was measured.
+    let mut table = Vec::new();
+    for (name, text, m, mbps_goal) in [
+        ("ring-lattice (sorted)", &ring, n * half_k, 800.0),
+        ("random pairs (unsorted)", &rand_text, rand_m, 400.0),
     ] {
         let plain = dir.path().join("edges.txt");
         std::fs::write(&plain, text).unwrap();
-        let plain_s = report(&format!("{name} plain"), &plain, text.len(), m, reps);
+        let (plain_s, plain_peak) = report(&format!("{name} plain"), &plain, text.len(), m, reps);
         let z1 = dir.path().join("edges.txt.zst");
         std::fs::write(&z1, zstd::encode_all(&text[..], 3).unwrap()).unwrap();
-        let z_s = report(&format!("{name} zstd-1f"), &z1, text.len(), m, reps);
+        let (z_s, z_peak) = report(&format!("{name} zstd-1f"), &z1, text.len(), m, reps);
         let dec = zstd_decode_seconds(&z1);
         let cli = zstd_cli_seconds(&z1);
         println!(
@@ -182,7 +199,35 @@ fn main() {
         );
         let zf = dir.path().join("edges.frames.zst");
         plumb::outfile::write_zstd_frames(&zf, text, 3, 4 << 20).unwrap();
-        report(&format!("{name} zstd-frames"), &zf, text.len(), m, reps);
+        let (zf_s, zf_peak) = report(&format!("{name} zstd-frames"), &zf, text.len(), m, reps);
+        table.push((
+            name,
+            text.len() as f64 / MB / plain_s,
+            mbps_goal,
+            zf_s / plain_s,
+            z_s / cli.unwrap_or(dec),
+            plain_peak.max(z_peak).max(zf_peak),
+        ));
+    }
+    println!("targets:");
+    for (name, mbps, goal, frames_ratio, single_ratio, peak) in table {
+        println!(" {name}");
+        target("plain text into the store", mbps, "MB/s", goal, true);
+        target("zstd frames / plain", frames_ratio, "x", 1.3, false);
+        target(
+            "zstd single frame / `zstd -dc`",
+            single_ratio,
+            "x",
+            1.5,
+            false,
+        );
+        target(
+            "peak heap / store, worst of the three",
+            peak,
+            "x",
+            1.5,
+            false,
+        );
     }
 
     // Store reopen: a ring lattice built directly (no text), written, then opened in place.
