@@ -138,6 +138,15 @@ pub enum Error {
         problem: String,
     },
 
+    /// The chosen id columns do not fit the file (a name not in its header, no header).
+    #[error("{path}: {problem}")]
+    Columns {
+        /// The input file.
+        path: PathBuf,
+        /// What is wrong, listing the header's columns when a name is missing.
+        problem: String,
+    },
+
     /// More distinct nodes than 32-bit indices hold (or `--max-nodes`).
     #[error("{path}: more than {limit} distinct nodes (plumb indexes nodes with 32-bit integers)")]
     TooManyNodes {

@@ -15,6 +15,7 @@ fuzz_target!(|data: &[u8]| {
         header_at: None,
         mtx: None,
         text_ids: false,
+        pick: None,
     };
     let mut got: Vec<(Vec<u8>, Vec<u8>)> = Vec::new();
     let out = scan_chunk(0, data, 0, &rules, |a, b| {

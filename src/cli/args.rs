@@ -436,6 +436,11 @@ pub(crate) struct InputArgs {
     /// Whether the first data line is a column header.
     #[arg(long, value_enum, default_value_t = HeaderArg::Auto)]
     pub(crate) header: HeaderArg,
+    /// The two id columns of a delimited export (CSV with quoting, tab- or blank-separated):
+    /// header names or 1-based positions, e.g. `sender,recipient` or `2,4` (default: the first
+    /// two fields).
+    #[arg(long, value_name = "A,B", value_parser = plumb::read::columns::ColumnChoice::parse)]
+    pub(crate) columns: Option<plumb::read::columns::ColumnChoice>,
     /// Skip malformed lines (counted, first few shown) instead of stopping at the first.
     #[arg(long)]
     pub(crate) skip_malformed: bool,
@@ -521,6 +526,7 @@ impl InputArgs {
             },
             scratch: self.scratch.clone(),
             scratch_keep_free: self.scratch_keep_free,
+            columns: self.columns.clone(),
             ..LoadOptions::default()
         }
     }

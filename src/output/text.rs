@@ -134,6 +134,9 @@ pub fn intake_text(g: &Graph, command: &str) -> String {
         );
     }
     row(&mut out, "lines", lines);
+    if let Some(c) = &i.id_columns {
+        row(&mut out, "ids from", c.clone());
+    }
     for b in &i.malformed_examples {
         row(
             &mut out,

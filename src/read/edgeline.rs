@@ -107,6 +107,30 @@ fn token(line: &[u8], start: usize) -> Result<(Token<'_>, usize), Fault> {
     Ok((tok, i))
 }
 
+/// A whole field as a token: an integer when it is decimal digits only and fits in u64.
+#[inline]
+pub(crate) fn int_token(field: &[u8]) -> Token<'_> {
+    let mut value: u64 = 0;
+    let mut int = !field.is_empty();
+    for &b in field {
+        let d = b.wrapping_sub(b'0');
+        match (d < 10)
+            .then(|| value.checked_mul(10).and_then(|v| v.checked_add(d as u64)))
+            .flatten()
+        {
+            Some(v) => value = v,
+            None => {
+                int = false;
+                break;
+            }
+        }
+    }
+    Token {
+        raw: field,
+        int: int.then_some(value),
+    }
+}
+
 /// Skip a separator: blanks with at most one comma among them. Returns the index of the next
 /// field, or `Err(EmptyField)` when a second comma shows an empty field.
 #[inline]
@@ -251,15 +275,25 @@ fn eight_digits(w: u64) -> u64 {
 /// integer ids, or its first two fields are common column names. A text-id file whose first line
 /// happens to look like data is left alone; the `--header` flag overrides this guess.
 pub fn looks_like_header(first: &[u8], next: Option<&[u8]>) -> bool {
-    let Ok(Line::Edge { a, b, .. }) = parse_line(first) else {
+    looks_like_header_by(first, next, |l| parse_line(l).ok())
+}
+
+/// [`looks_like_header`] with the lines read by `parse` (the chosen columns of a delimited
+/// export, say).
+pub(crate) fn looks_like_header_by<'a>(
+    first: &'a [u8],
+    next: Option<&'a [u8]>,
+    parse: impl Fn(&'a [u8]) -> Option<Line<'a>>,
+) -> bool {
+    let Some(Line::Edge { a, b, .. }) = parse(first) else {
         return false;
     };
     if a.int.is_some() && b.int.is_some() {
         return false;
     }
     let next_is_int = matches!(
-        next.map(parse_line),
-        Some(Ok(Line::Edge { a, b, .. })) if a.int.is_some() && b.int.is_some()
+        next.and_then(&parse),
+        Some(Line::Edge { a, b, .. }) if a.int.is_some() && b.int.is_some()
     );
     let named = |t: Token| t.int.is_none() && is_column_name(t.raw);
     next_is_int || (named(a) && named(b))

@@ -3,6 +3,8 @@
 //! grammars (pure functions over byte slices, no I/O) and the chunk scanner that applies them.
 //! Uses only `error` and `progress`.
 
+/// Choosing the two id columns of a delimited export.
+pub mod columns;
 pub(crate) mod edgeline;
 pub(crate) mod magic;
 pub(crate) mod mtx;

@@ -3,6 +3,7 @@
 //! decisions about every line (including which malformed lines are skipped).
 
 use crate::error::excerpt;
+use crate::read::columns::{self, Picked};
 use crate::read::edgeline::{self, Line, Token};
 use crate::read::mtx::Field;
 
@@ -30,6 +31,8 @@ pub struct ScanRules {
     pub mtx: Option<MtxRules>,
     /// Ids are compared as text (else by integer value) when deciding self-loops.
     pub text_ids: bool,
+    /// The two id columns of a delimited export, when chosen (else the first two fields).
+    pub pick: Option<Picked>,
 }
 
 /// Line counts of one chunk.
@@ -145,11 +148,16 @@ pub fn scan_chunk<'a>(
         let start = pos;
         line_no += 1;
         // The common shape ("123 456\n") skips the general parser and the newline search.
-        let quick = edgeline::quick_pair(bytes, pos).filter(|&(a, b, next)| {
-            next - pos <= rules.max_line
-                && rules.header_at != Some(byte_base + pos as u64)
-                && rules.mtx.is_none_or(|m| mtx_entry(a, b, false, m).is_ok())
-        });
+        let quick = rules
+            .pick
+            .is_none()
+            .then(|| edgeline::quick_pair(bytes, pos))
+            .flatten()
+            .filter(|&(a, b, next)| {
+                next - pos <= rules.max_line
+                    && rules.header_at != Some(byte_base + pos as u64)
+                    && rules.mtx.is_none_or(|m| mtx_entry(a, b, false, m).is_ok())
+            });
         let (verdict, line) = if let Some((a, b, next)) = quick {
             pos = next;
             (Ok((a, b)), &bytes[start..next])
@@ -170,7 +178,17 @@ pub fn scan_chunk<'a>(
                 out.header_skipped = true;
                 continue;
             }
-            let verdict = match edgeline::parse_line(line) {
+            let parsed = match &rules.pick {
+                None => edgeline::parse_line(line).map_err(|f| LineError::Malformed {
+                    problem: f.problem().to_string(),
+                    expected: edgeline::EXPECTED_EDGE,
+                }),
+                Some(p) => columns::parse_picked(line, p).map_err(|f| LineError::Malformed {
+                    problem: f.problem(p),
+                    expected: columns::EXPECTED_PICKED,
+                }),
+            };
+            let verdict = match parsed {
                 Ok(Line::Edge { a, b, extra }) => match rules.mtx {
                     None => {
                         c.extra += extra as u64;
@@ -188,10 +206,7 @@ pub fn scan_chunk<'a>(
                     c.comments += 1;
                     continue;
                 }
-                Err(f) => Err(LineError::Malformed {
-                    problem: f.problem().to_string(),
-                    expected: edgeline::EXPECTED_EDGE,
-                }),
+                Err(e) => Err(e),
             };
             (verdict, line)
         };
@@ -256,6 +271,7 @@ mod tests {
             header_at: None,
             mtx: None,
             text_ids: false,
+            pick: None,
         }
     }
 

@@ -154,6 +154,10 @@ pub struct Intake {
     pub comment_lines: u64,
     /// The header line that was skipped, if any.
     pub header_line: Option<String>,
+    /// Where the ids were read when columns were chosen: their positions (from 1), names and
+    /// the delimiter, in words.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub id_columns: Option<String>,
     /// Lines that held an edge, self-loops included.
     pub edge_lines: u64,
     /// Edge lines with columns after the two ids (ignored).
@@ -230,6 +234,7 @@ impl Intake {
             blank_lines: 0,
             comment_lines: 0,
             header_line: None,
+            id_columns: None,
             edge_lines: edges,
             extra_column_lines: 0,
             self_loops: 0,

@@ -20,6 +20,7 @@ use rayon::prelude::*;
 
 use crate::error::{Error, Position, Result};
 use crate::progress::{Progress, Unit};
+use crate::read::columns::{self, ColumnChoice, Delimiter, Picked};
 use crate::read::edgeline::{self, Line};
 use crate::read::mtx::{self, Header as MtxHeader};
 use crate::read::pieces::{self, Source};
@@ -92,6 +93,9 @@ pub struct LoadOptions {
     pub scratch: Option<std::path::PathBuf>,
     /// Bytes a build on disk leaves free on the scratch disk; it refuses to start otherwise.
     pub scratch_keep_free: u64,
+    /// The two id columns of a delimited export (names in its header, or 1-based positions);
+    /// `None` reads the first two fields.
+    pub columns: Option<ColumnChoice>,
 }
 
 impl Default for LoadOptions {
@@ -107,6 +111,7 @@ impl Default for LoadOptions {
             build: BuildChoice::Auto,
             scratch: None,
             scratch_keep_free: 1 << 30,
+            columns: None,
         }
     }
 }
@@ -213,6 +218,8 @@ struct Loader<'a> {
     rules: ScanRules,
     mtx: Option<MtxHeader>,
     header_line: Option<String>,
+    /// The chosen id columns, in words.
+    id_columns: Option<String>,
     threads: usize,
     stages: Vec<Stage>,
     clock: Instant,
@@ -276,8 +283,19 @@ impl<'a> Loader<'a> {
             header_at: None,
             mtx: None,
             text_ids: false,
+            pick: None,
         };
         let mut header_line = None;
+        let mut id_columns = None;
+        if use_mtx && opts.columns.is_some() {
+            return Err(Error::Parameters {
+                problem: format!(
+                    "{}: is Matrix Market, whose entries have fixed columns; choosing columns \
+                     applies to delimited edge lists",
+                    path.display()
+                ),
+            });
+        }
         let mtx = if use_mtx {
             let h = mtx::parse_header(&head).map_err(|f| Error::MatrixMarket {
                 path: path.clone(),
@@ -310,12 +328,22 @@ impl<'a> Loader<'a> {
         } else {
             let data_lines = first_data_lines(&head);
             let first = data_lines.first().copied();
-            let take = match opts.header {
-                HeaderChoice::None => false,
-                HeaderChoice::Skip => true,
-                HeaderChoice::Auto => first.is_some_and(|(_, l)| {
-                    edgeline::looks_like_header(l, data_lines.get(1).map(|x| x.1))
-                }),
+            let next = data_lines.get(1).map(|x| x.1);
+            let take = match &opts.columns {
+                Some(choice) => {
+                    let (take, picked, note) =
+                        pick_columns(path, choice, opts.header, &head, first, next)?;
+                    rules.pick = Some(picked);
+                    id_columns = Some(note);
+                    take
+                }
+                None => match opts.header {
+                    HeaderChoice::None => false,
+                    HeaderChoice::Skip => true,
+                    HeaderChoice::Auto => {
+                        first.is_some_and(|(_, l)| edgeline::looks_like_header(l, next))
+                    }
+                },
             };
             if let (true, Some((at, line))) = (take, first) {
                 rules.header_at = Some(at as u64);
@@ -331,6 +359,7 @@ impl<'a> Loader<'a> {
             rules,
             mtx,
             header_line,
+            id_columns,
             threads,
             stages: Vec::new(),
             clock: Instant::now(),
@@ -458,6 +487,7 @@ impl<'a> Loader<'a> {
             } else {
                 None
             },
+            id_columns: self.id_columns.take(),
             edge_lines: total.edge_lines,
             extra_column_lines: total.extra,
             self_loops: total.loops,
@@ -661,6 +691,84 @@ fn peek<'a>(src: Source<'a>, path: &Path) -> Result<Cow<'a, [u8]>> {
         }),
         Err(StreamFault::LongLine { .. }) => Ok(Cow::Owned(head)),
     }
+}
+
+/// Resolve the chosen columns against the first data lines: the delimiter is sniffed from the
+/// first, names are looked up in it (it is then the header), and with positions only the usual
+/// header guess is made on the chosen fields. Returns whether the first data line is a header,
+/// the resolved columns, and where the ids are read, in words.
+fn pick_columns(
+    path: &Path,
+    choice: &ColumnChoice,
+    header: HeaderChoice,
+    head: &[u8],
+    first: Option<(usize, &[u8])>,
+    next: Option<&[u8]>,
+) -> Result<(bool, Picked, String)> {
+    let fault = |problem: String| Error::Columns {
+        path: path.to_path_buf(),
+        problem,
+    };
+    if choice.needs_header() && header == HeaderChoice::None {
+        return Err(fault(
+            "columns chosen by name need a header line, and the header option says there is \
+             none; give 1-based positions instead"
+                .into(),
+        ));
+    }
+    let Some((at, line)) = first else {
+        return Err(fault("no data line to find the columns in".into()));
+    };
+    let delim = Delimiter::sniff(line);
+    let take = match header {
+        HeaderChoice::None => false,
+        HeaderChoice::Skip => true,
+        HeaderChoice::Auto => {
+            choice.needs_header() || {
+                let picked = columns::resolve(choice, None, delim)
+                    .map_err(|_| fault("internal: positions resolve without a header".into()))?;
+                edgeline::looks_like_header_by(line, next, |l| {
+                    columns::parse_picked(l, &picked).ok()
+                })
+            }
+        }
+    };
+    let picked = columns::resolve(choice, take.then_some(line), delim).map_err(|u| {
+        let line_no = head[..at].iter().filter(|&&c| c == b'\n').count() + 1;
+        let fields = if u.header.is_empty() {
+            "no fields".to_string()
+        } else {
+            u.header
+                .iter()
+                .enumerate()
+                .map(|(i, h)| format!("{} {h:?}", i + 1))
+                .collect::<Vec<_>>()
+                .join(", ")
+        };
+        fault(format!(
+            "{} is not in the header (line {line_no}, {}); its columns are: {fields}",
+            u.missing,
+            delim.name()
+        ))
+    })?;
+    let names: Vec<&[u8]> = if take {
+        columns::fields(line.strip_suffix(b"\r").unwrap_or(line), delim)
+            .map(|f| f.unwrap_or_default())
+            .collect()
+    } else {
+        Vec::new()
+    };
+    let describe = |i: usize| match names.get(i) {
+        Some(n) => format!("{} {:?}", i + 1, String::from_utf8_lossy(n)),
+        None => (i + 1).to_string(),
+    };
+    let note = format!(
+        "columns {} and {}, {}",
+        describe(picked.a),
+        describe(picked.b),
+        delim.name()
+    );
+    Ok((take, picked, note))
 }
 
 /// Up to two data lines (not blank, not comment) from the start of the text, with offsets.
