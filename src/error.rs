@@ -13,10 +13,15 @@ pub struct Position {
     pub byte: u64,
     /// The offset counts decompressed bytes.
     pub decoded: bool,
+    /// `line` counts the rows of a Parquet file (the byte offset is then not shown).
+    pub rows: bool,
 }
 
 impl std::fmt::Display for Position {
     fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
+        if self.rows {
+            return write!(f, "row {} of the file", self.line);
+        }
         write!(f, "line {}, byte offset {}", self.line, self.byte)?;
         if self.decoded {
             f.write_str(" of the decompressed text")?;
@@ -135,6 +140,16 @@ pub enum Error {
         /// Where.
         pos: Position,
         /// What is wrong.
+        problem: String,
+    },
+
+    /// A Parquet file that cannot be read: a damaged footer or page, or id columns that are
+    /// missing or of the wrong type.
+    #[error("{path}: Parquet: {problem}")]
+    Parquet {
+        /// The input file.
+        path: PathBuf,
+        /// What is wrong, in words (a missing column lists the file's columns).
         problem: String,
     },
 

@@ -436,9 +436,9 @@ pub(crate) struct InputArgs {
     /// Whether the first data line is a column header.
     #[arg(long, value_enum, default_value_t = HeaderArg::Auto)]
     pub(crate) header: HeaderArg,
-    /// The two id columns of a delimited export (CSV with quoting, tab- or blank-separated):
-    /// header names or 1-based positions, e.g. `sender,recipient` or `2,4` (default: the first
-    /// two fields).
+    /// The two id columns of a delimited export (CSV with quoting, tab- or blank-separated) or a
+    /// Parquet file: names or 1-based positions, e.g. `sender,recipient` or `2,4` (default: the
+    /// first two columns).
     #[arg(long, value_name = "A,B", value_parser = plumb::read::columns::ColumnChoice::parse)]
     pub(crate) columns: Option<plumb::read::columns::ColumnChoice>,
     /// Skip malformed lines (counted, first few shown) instead of stopping at the first.

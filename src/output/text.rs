@@ -63,16 +63,18 @@ pub fn intake_text(g: &Graph, command: &str) -> String {
             _ => "zstd (1 frame)".to_string(),
         },
         Compression::Gzip => "gzip".to_string(),
+        Compression::Parquet => "Parquet".to_string(),
     };
     let grammar = match i.format {
         InputFormat::EdgeList => "edge list",
         InputFormat::MatrixMarket => "Matrix Market coordinate",
+        InputFormat::Parquet => "two id columns",
     };
     let ids = match i.id_kind {
         IdKind::Integer => "integer ids",
         IdKind::Text => "text ids",
     };
-    let size = if i.compression == Compression::None {
+    let size = if matches!(i.compression, Compression::None | Compression::Parquet) {
         bytes(i.input_bytes)
     } else {
         format!("{} → {} of text", bytes(i.input_bytes), bytes(i.text_bytes))
@@ -99,18 +101,26 @@ pub fn intake_text(g: &Graph, command: &str) -> String {
             ),
         );
     }
+    // A Parquet file's lines are its rows.
+    let line_word = if i.format == InputFormat::Parquet {
+        "row"
+    } else {
+        "line"
+    };
     if let Some(f) = &i.first_text_id {
         let why = if f.integer_too_large {
             format!(
-                "{:?} on line {} is an integer beyond 2^64-1, so every id is read as text \
+                "{:?} on {} {} is an integer beyond 2^64-1, so every id is read as text \
                  (007 and 7 are then different nodes)",
                 f.id,
+                line_word,
                 count(f.line)
             )
         } else {
             format!(
-                "text because of {:?} on line {}, the first id that is not an integer",
+                "text because of {:?} on {} {}, the first id that is not an integer",
                 f.id,
+                line_word,
                 count(f.line)
             )
         };

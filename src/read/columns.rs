@@ -4,10 +4,10 @@
 //! The delimiter is one of tab, comma or runs of blanks, decided once per file from its header or
 //! first data line. With commas, fields may be quoted as RFC 4180 describes (Shafranovich, 2005,
 //! "Common Format and MIME Type for Comma-Separated Values (CSV) Files"): a quoted field runs to
-//! its closing quote, commas inside it are data, and a doubled quote stands for one quote. A
-//! quoted id keeps its bytes as written between the quotes (a doubled quote stays doubled, so the
-//! same id always reads the same); a line break inside quotes is not supported (the text is cut
-//! into pieces at line breaks) and makes the line malformed. Blanks around a field are dropped.
+//! its closing quote, commas inside it are data, and a doubled quote stands for one quote (the
+//! rare id holding one is unescaped into a scratch buffer; the others borrow the text). A line
+//! break inside quotes is not supported (the text is cut into pieces at line breaks) and makes
+//! the line malformed. Blanks around a field are dropped.
 
 use crate::error::ParamError;
 use crate::read::edgeline::{Line, Token, int_token};
@@ -145,7 +145,11 @@ pub(crate) fn resolve(
     let names: Vec<String> = header
         .map(|h| {
             fields(strip_cr(h), delim)
-                .map(|f| String::from_utf8_lossy(f.unwrap_or_default()).into_owned())
+                .map(|f| {
+                    let f = f.unwrap_or_default();
+                    let mut out = Vec::new();
+                    String::from_utf8_lossy(f.unescaped(&mut out)).into_owned()
+                })
                 .collect()
         })
         .unwrap_or_default();
@@ -209,11 +213,51 @@ pub(crate) enum FieldFault {
     AfterQuote,
 }
 
+/// One field of a line: its bytes (inside the quotes when quoted, doubled quotes as written).
+#[derive(Debug, Clone, Copy, Default, PartialEq, Eq)]
+pub(crate) struct Field<'a> {
+    pub(crate) bytes: &'a [u8],
+    pub(crate) quoted: bool,
+}
+
+impl<'a> Field<'a> {
+    /// Whether a doubled quote must be undone.
+    fn escaped(&self) -> bool {
+        self.quoted && memchr::memchr(b'"', self.bytes).is_some()
+    }
+
+    /// The field's value: its bytes, or with doubled quotes undone into `out`.
+    pub(crate) fn unescaped<'b>(&self, out: &'b mut Vec<u8>) -> &'b [u8]
+    where
+        'a: 'b,
+    {
+        if !self.escaped() {
+            return self.bytes;
+        }
+        out.clear();
+        unescape_into(self.bytes, out);
+        out
+    }
+}
+
+fn unescape_into(bytes: &[u8], out: &mut Vec<u8>) {
+    let mut i = 0;
+    while i < bytes.len() {
+        out.push(bytes[i]);
+        // Inside a closed quoted field every quote is doubled.
+        i += if bytes[i] == b'"' { 2 } else { 1 };
+    }
+}
+
 /// The fields of a line (without its line break), each trimmed of blanks and unquoted.
 pub(crate) fn fields(
     line: &[u8],
     delim: Delimiter,
-) -> impl Iterator<Item = Result<&[u8], FieldFault>> {
+) -> impl Iterator<Item = Result<Field<'_>, FieldFault>> {
+    let plain = |bytes| Field {
+        bytes,
+        quoted: false,
+    };
     let mut rest = Some(line);
     std::iter::from_fn(move || {
         let line = rest?;
@@ -223,19 +267,19 @@ pub(crate) fn fields(
                 let line = &line[start..];
                 let end = line.iter().position(|&c| is_blank(c)).unwrap_or(line.len());
                 rest = Some(&line[end..]);
-                Some(Ok(&line[..end]))
+                Some(Ok(plain(&line[..end])))
             }
             Delimiter::Tab => {
                 let end = memchr::memchr(b'\t', line);
                 rest = end.map(|e| &line[e + 1..]);
-                Some(Ok(trim(&line[..end.unwrap_or(line.len())])))
+                Some(Ok(plain(trim(&line[..end.unwrap_or(line.len())]))))
             }
             Delimiter::Comma => {
                 let lead = line.iter().take_while(|&&c| is_blank(c)).count();
                 if line.get(lead) != Some(&b'"') {
                     let end = memchr::memchr(b',', line);
                     rest = end.map(|e| &line[e + 1..]);
-                    return Some(Ok(trim(&line[..end.unwrap_or(line.len())])));
+                    return Some(Ok(plain(trim(&line[..end.unwrap_or(line.len())]))));
                 }
                 // A quoted field: its closing quote is one not followed by another quote.
                 let body = &line[lead + 1..];
@@ -260,7 +304,10 @@ pub(crate) fn fields(
                         return Some(Err(FieldFault::AfterQuote));
                     }
                 }
-                Some(Ok(&body[..close]))
+                Some(Ok(Field {
+                    bytes: &body[..close],
+                    quoted: true,
+                }))
             }
         }
     })
@@ -288,7 +335,7 @@ impl PickFault {
                 if n == 1 { "" } else { "s" },
                 picked.a.max(picked.b) + 1
             ),
-            PickFault::Empty => "an empty node id in a chosen column".into(),
+            PickFault::Empty => "an empty (or null) node id in a chosen column".into(),
             PickFault::ControlByte => "a control character inside a node id".into(),
             PickFault::Quote(FieldFault::Unclosed) => {
                 "a quoted field is not closed on its line (line breaks inside quotes are not \
@@ -308,8 +355,13 @@ pub(crate) const EXPECTED_PICKED: &str =
 
 /// Parse a line (without its `\n`; a trailing `\r` is allowed) by the chosen columns. Blank and
 /// comment lines are as in the plain grammar; the other columns are expected, so `extra` is
-/// never set. Fields after the chosen ones are not read.
-pub(crate) fn parse_picked<'a>(line: &'a [u8], picked: &Picked) -> Result<Line<'a>, PickFault> {
+/// never set. Fields after the chosen ones are not read. An id with a doubled quote is unescaped
+/// into `scratch`; the others borrow `line`.
+pub(crate) fn parse_picked<'a>(
+    line: &'a [u8],
+    picked: &Picked,
+    scratch: &'a mut Vec<u8>,
+) -> Result<Line<'a>, PickFault> {
     let line = strip_cr(line);
     let first = line.iter().position(|&c| !is_blank(c));
     let Some(first) = first else {
@@ -337,6 +389,20 @@ pub(crate) fn parse_picked<'a>(line: &'a [u8], picked: &Picked) -> Result<Line<'
     let (Some(a), Some(b)) = (a, b) else {
         return Err(PickFault::TooFew(seen));
     };
+    let (a, b): (&'a [u8], &'a [u8]) = if a.escaped() || b.escaped() {
+        // Both values go to the scratch buffer, then are sliced out of it.
+        scratch.clear();
+        unescape_into(a.bytes, scratch);
+        let split = scratch.len();
+        unescape_into(b.bytes, scratch);
+        let (x, y) = scratch.split_at(split);
+        (
+            if a.escaped() { x } else { a.bytes },
+            if b.escaped() { y } else { b.bytes },
+        )
+    } else {
+        (a.bytes, b.bytes)
+    };
     let token = |f: &'a [u8]| -> Result<Token<'a>, PickFault> {
         if f.is_empty() {
             return Err(PickFault::Empty);
@@ -361,8 +427,15 @@ mod tests {
         Picked { a, b, delim }
     }
 
+    fn parse(line: &[u8], p: &Picked) -> Result<Line<'static>, PickFault> {
+        // Leaked so the tokens outlive the call; tests only.
+        let line: &'static [u8] = Box::leak(line.to_vec().into_boxed_slice());
+        let scratch: &'static mut Vec<u8> = Box::leak(Box::new(Vec::new()));
+        parse_picked(line, p, scratch)
+    }
+
     fn ids(line: &[u8], p: &Picked) -> (Vec<u8>, Vec<u8>) {
-        match parse_picked(line, p) {
+        match parse(line, p) {
             Ok(Line::Edge { a, b, .. }) => (a.raw.to_vec(), b.raw.to_vec()),
             other => panic!("{:?}: {other:?}", String::from_utf8_lossy(line)),
         }
@@ -393,14 +466,14 @@ mod tests {
         let p = pick(2, 0, Delimiter::Comma);
         assert_eq!(
             ids(br#" "a" , b , "c""d" "#, &p),
-            (b"c\"\"d".to_vec(), b"a".to_vec())
+            (b"c\"d".to_vec(), b"a".to_vec())
         );
         assert_eq!(
-            parse_picked(br#""open,1"#, &pick(0, 1, Delimiter::Comma)),
+            parse(br#""open,1"#, &pick(0, 1, Delimiter::Comma)),
             Err(PickFault::Quote(FieldFault::Unclosed))
         );
         assert_eq!(
-            parse_picked(br#""a"b,1"#, &pick(0, 1, Delimiter::Comma)),
+            parse(br#""a"b,1"#, &pick(0, 1, Delimiter::Comma)),
             Err(PickFault::Quote(FieldFault::AfterQuote))
         );
     }
@@ -409,20 +482,20 @@ mod tests {
     fn empty_other_fields_are_fine_but_empty_ids_are_not() {
         let p = pick(0, 3, Delimiter::Comma);
         assert_eq!(ids(b"7,,,9,\r", &p), (b"7".to_vec(), b"9".to_vec()));
-        assert_eq!(parse_picked(b"7,,,,", &p), Err(PickFault::Empty));
-        assert_eq!(parse_picked(b"7,1", &p), Err(PickFault::TooFew(2)));
+        assert_eq!(parse(b"7,,,,", &p), Err(PickFault::Empty));
+        assert_eq!(parse(b"7,1", &p), Err(PickFault::TooFew(2)));
         let p = pick(2, 1, Delimiter::Tab);
         assert_eq!(ids(b"x\t 12 \t13\t", &p), (b"13".to_vec(), b"12".to_vec()));
         let p = pick(1, 2, Delimiter::Blanks);
         assert_eq!(ids(b"  x   12 13 y", &p), (b"12".to_vec(), b"13".to_vec()));
-        assert_eq!(parse_picked(b"  # note", &p), Ok(Line::Comment));
-        assert_eq!(parse_picked(b" \t ", &p), Ok(Line::Blank));
+        assert_eq!(parse(b"  # note", &p), Ok(Line::Comment));
+        assert_eq!(parse(b" \t ", &p), Ok(Line::Blank));
     }
 
     #[test]
     fn ids_in_chosen_columns_are_integers_when_they_are_digits() {
         let p = pick(1, 0, Delimiter::Comma);
-        match parse_picked(b"12,\"0034\",x", &p) {
+        match parse(b"12,\"0034\",x", &p) {
             Ok(Line::Edge { a, b, extra }) => {
                 assert_eq!((a.int, b.int, extra), (Some(34), Some(12), false));
             }

@@ -275,24 +275,23 @@ fn eight_digits(w: u64) -> u64 {
 /// integer ids, or its first two fields are common column names. A text-id file whose first line
 /// happens to look like data is left alone; the `--header` flag overrides this guess.
 pub fn looks_like_header(first: &[u8], next: Option<&[u8]>) -> bool {
-    looks_like_header_by(first, next, |l| parse_line(l).ok())
+    looks_like_header_parsed(
+        parse_line(first).ok(),
+        next.and_then(|l| parse_line(l).ok()),
+    )
 }
 
-/// [`looks_like_header`] with the lines read by `parse` (the chosen columns of a delimited
-/// export, say).
-pub(crate) fn looks_like_header_by<'a>(
-    first: &'a [u8],
-    next: Option<&'a [u8]>,
-    parse: impl Fn(&'a [u8]) -> Option<Line<'a>>,
-) -> bool {
-    let Some(Line::Edge { a, b, .. }) = parse(first) else {
+/// [`looks_like_header`] on lines already parsed (by the chosen columns of a delimited export,
+/// say).
+pub(crate) fn looks_like_header_parsed(first: Option<Line>, next: Option<Line>) -> bool {
+    let Some(Line::Edge { a, b, .. }) = first else {
         return false;
     };
     if a.int.is_some() && b.int.is_some() {
         return false;
     }
     let next_is_int = matches!(
-        next.and_then(&parse),
+        next,
         Some(Line::Edge { a, b, .. }) if a.int.is_some() && b.int.is_some()
     );
     let named = |t: Token| t.int.is_none() && is_column_name(t.raw);

@@ -14,5 +14,7 @@ pub(crate) const LZ4: [u8; 4] = [0x04, 0x22, 0x4D, 0x18];
 pub(crate) const ZIP: [u8; 4] = *b"PK\x03\x04";
 /// bzip2 streams start with `BZh` and a block-size digit.
 pub(crate) const BZIP2: [u8; 3] = *b"BZh";
+/// Apache Parquet files start and end with these bytes (the Parquet file format specification).
+pub(crate) const PARQUET: [u8; 4] = *b"PAR1";
 /// plumb's store file (see `store::file`): a PNG-style signature that no text file starts with.
 pub(crate) const STORE: &[u8; 8] = b"\x89PLB\r\n\x1a\n";

@@ -8,6 +8,8 @@ pub mod columns;
 pub(crate) mod edgeline;
 pub(crate) mod magic;
 pub(crate) mod mtx;
+/// Parquet files' id columns.
+pub mod parquet;
 pub(crate) mod pieces;
 /// The chunk scanner, public for the fuzz targets only (feature `reference`).
 #[cfg(feature = "reference")]

@@ -21,6 +21,8 @@ pub struct Source<'a> {
     /// The map behind `data`, when it is one: pieces done with are dropped from the resident
     /// set (the file stays in the page cache), so reading a large file does not hold it all.
     pub map: Option<&'a memmap2::Mmap>,
+    /// The id columns of a Parquet source.
+    pub parquet: Option<&'a crate::read::parquet::ParquetPlan>,
 }
 
 /// Drop the whole pages of `data[a..b]` from this process's resident set. Safe for a read-only
@@ -119,6 +121,7 @@ pub fn run<W: Send>(
                     source::decode_chunks(
                         src.data,
                         c,
+                        src.parquet,
                         src.piece,
                         src.max_line,
                         &consumed,

@@ -119,13 +119,25 @@ pub struct ChunkOutcome {
 pub const EXAMPLES: usize = 5;
 
 /// Scan `bytes` (starting at text offset `byte_base`), calling `on_edge` for every edge line
-/// (self-loops included). `on_edge` returns false to stop the scan.
-pub fn scan_chunk<'a>(
+/// (self-loops included). `on_edge` returns false to stop the scan. The tokens live for the
+/// call only (an unescaped quoted id sits in a scratch buffer).
+pub fn scan_chunk(
     index: usize,
-    bytes: &'a [u8],
+    bytes: &[u8],
     byte_base: u64,
     rules: &ScanRules,
-    mut on_edge: impl FnMut(Token<'a>, Token<'a>) -> bool,
+    mut on_edge: impl FnMut(Token<'_>, Token<'_>) -> bool,
+) -> ChunkOutcome {
+    scan_chunk_at(index, bytes, byte_base, rules, |a, b, _| on_edge(a, b))
+}
+
+/// [`scan_chunk`], also telling `on_edge` where the line starts within `bytes`.
+pub fn scan_chunk_at(
+    index: usize,
+    bytes: &[u8],
+    byte_base: u64,
+    rules: &ScanRules,
+    mut on_edge: impl FnMut(Token<'_>, Token<'_>, usize) -> bool,
 ) -> ChunkOutcome {
     let mut out = ChunkOutcome {
         index,
@@ -144,15 +156,23 @@ pub fn scan_chunk<'a>(
         pos = ((rules.body_start - byte_base) as usize).min(len);
     }
     let mut line_no = 0u64;
+    let mut scratch = Vec::new();
+    // The quick path reads `digits SEP digits`: any separator for the plain grammar, a comma
+    // when the chosen columns are the first two of comma-separated text (Parquet's rows too).
+    let quick_sep = match &rules.pick {
+        None => Some(false),
+        Some(p) if (p.a, p.b, p.delim) == (0, 1, columns::Delimiter::Comma) => Some(true),
+        Some(_) => None,
+    };
     while pos < len {
         let start = pos;
         line_no += 1;
         // The common shape ("123 456\n") skips the general parser and the newline search.
-        let quick = rules
-            .pick
-            .is_none()
-            .then(|| edgeline::quick_pair(bytes, pos))
-            .flatten()
+        let quick = quick_sep
+            .and_then(|comma_only| {
+                edgeline::quick_pair(bytes, pos)
+                    .filter(|(a, ..)| !comma_only || bytes[pos + a.raw.len()] == b',')
+            })
             .filter(|&(a, b, next)| {
                 next - pos <= rules.max_line
                     && rules.header_at != Some(byte_base + pos as u64)
@@ -183,10 +203,12 @@ pub fn scan_chunk<'a>(
                     problem: f.problem().to_string(),
                     expected: edgeline::EXPECTED_EDGE,
                 }),
-                Some(p) => columns::parse_picked(line, p).map_err(|f| LineError::Malformed {
-                    problem: f.problem(p),
-                    expected: columns::EXPECTED_PICKED,
-                }),
+                Some(p) => {
+                    columns::parse_picked(line, p, &mut scratch).map_err(|f| LineError::Malformed {
+                        problem: f.problem(p),
+                        expected: columns::EXPECTED_PICKED,
+                    })
+                }
             };
             let verdict = match parsed {
                 Ok(Line::Edge { a, b, extra }) => match rules.mtx {
@@ -214,7 +236,7 @@ pub fn scan_chunk<'a>(
             Ok((a, b)) => {
                 c.edge_lines += 1;
                 c.loops += a.same(&b, rules.text_ids) as u64;
-                if !on_edge(a, b) {
+                if !on_edge(a, b, start) {
                     out.stopped = true;
                     break;
                 }
@@ -280,7 +302,7 @@ mod tests {
         let text = b"# c\n1 2\n\n2 2 w\r\n3,4";
         let mut edges = Vec::new();
         let o = scan_chunk(0, text, 0, &rules(), |a, b| {
-            edges.push((a, b));
+            edges.push((a.raw.to_vec(), b.raw.to_vec()));
             true
         });
         assert_eq!(edges.len(), 3);

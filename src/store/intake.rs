@@ -13,6 +13,8 @@ pub enum InputFormat {
     EdgeList,
     /// Matrix Market coordinate format.
     MatrixMarket,
+    /// Apache Parquet, two id columns.
+    Parquet,
 }
 
 /// How ids are read.

@@ -23,6 +23,7 @@ use crate::progress::{Progress, Unit};
 use crate::read::columns::{self, ColumnChoice, Delimiter, Picked};
 use crate::read::edgeline::{self, Line};
 use crate::read::mtx::{self, Header as MtxHeader};
+use crate::read::parquet::{self, ParquetFault, ParquetPlan};
 use crate::read::pieces::{self, Source};
 use crate::read::scan::{self, ChunkOutcome, Counts, LineError, MtxRules, ScanRules};
 use crate::read::source::{self, Compression, InputBytes, Sniffed, StreamFault};
@@ -184,7 +185,19 @@ fn load_to(
         Sniffed::Text => Compression::None,
         Sniffed::Compressed(c) => c,
     };
-    let mut loader = Loader::new(&input, compression, opts, progress)?;
+    let plan = match compression {
+        Compression::Parquet => Some(parquet::plan(input.bytes(), opts.columns.as_ref()).map_err(
+            |f| Error::Parquet {
+                path: input.path.clone(),
+                problem: match f {
+                    ParquetFault::Unreadable(p) => format!("unreadable ({p})"),
+                    ParquetFault::Columns(p) => p,
+                },
+            },
+        )?),
+        _ => None,
+    };
+    let mut loader = Loader::new(&input, compression, plan.as_ref(), opts, progress)?;
     loader.dest = dest;
     loader.run()
 }
@@ -240,6 +253,7 @@ impl<'a> Loader<'a> {
     fn new(
         input: &'a InputBytes,
         compression: Compression,
+        parquet: Option<&'a ParquetPlan>,
         opts: &'a LoadOptions,
         progress: &'a dyn Progress,
     ) -> Result<Self> {
@@ -258,6 +272,7 @@ impl<'a> Loader<'a> {
             piece,
             max_line: opts.max_line,
             map: input.map(),
+            parquet,
         };
         let head = peek(src, path)?;
         if head.is_empty() {
@@ -265,6 +280,8 @@ impl<'a> Loader<'a> {
                 path: path.clone(),
                 detail: if data.is_empty() {
                     "the file is empty".into()
+                } else if parquet.is_some() {
+                    "the Parquet file has no rows".into()
                 } else {
                     "it decompresses to nothing".into()
                 },
@@ -272,6 +289,7 @@ impl<'a> Loader<'a> {
         }
         let banner = mtx::has_banner(&head);
         let use_mtx = match opts.format {
+            _ if parquet.is_some() => false,
             FormatChoice::Auto => banner,
             FormatChoice::EdgeList => false,
             FormatChoice::MatrixMarket => true,
@@ -303,6 +321,7 @@ impl<'a> Loader<'a> {
                     line: f.line,
                     byte: f.byte as u64,
                     decoded: compression != Compression::None,
+                    rows: false,
                 },
                 problem: f.problem,
             })?;
@@ -329,15 +348,25 @@ impl<'a> Loader<'a> {
             let data_lines = first_data_lines(&head);
             let first = data_lines.first().copied();
             let next = data_lines.get(1).map(|x| x.1);
-            let take = match &opts.columns {
-                Some(choice) => {
+            let take = match (&opts.columns, parquet) {
+                (_, Some(plan)) => {
+                    // Rendered rows: the two ids, comma-separated and quoted when text.
+                    rules.pick = Some(Picked {
+                        a: 0,
+                        b: 1,
+                        delim: Delimiter::Comma,
+                    });
+                    id_columns = Some(plan.described.clone());
+                    false
+                }
+                (Some(choice), None) => {
                     let (take, picked, note) =
                         pick_columns(path, choice, opts.header, &head, first, next)?;
                     rules.pick = Some(picked);
                     id_columns = Some(note);
                     take
                 }
-                None => match opts.header {
+                (None, None) => match opts.header {
                     HeaderChoice::None => false,
                     HeaderChoice::Skip => true,
                     HeaderChoice::Auto => {
@@ -472,6 +501,8 @@ impl<'a> Loader<'a> {
             packed_from: None,
             format: if self.mtx.is_some() {
                 InputFormat::MatrixMarket
+            } else if self.src.parquet.is_some() {
+                InputFormat::Parquet
             } else {
                 InputFormat::EdgeList
             },
@@ -540,6 +571,7 @@ impl<'a> Loader<'a> {
                         line: h.size_line.0,
                         byte: h.size_line.1 as u64,
                         decoded: self.src.compression != Compression::None,
+                        rows: false,
                     },
                     problem: format!(
                         "the size line promises {} entries but the file holds {}{}",
@@ -567,6 +599,7 @@ impl<'a> Loader<'a> {
             line,
             byte,
             decoded: self.src.compression != Compression::None,
+            rows: self.src.compression == Compression::Parquet,
         };
         match e {
             LineError::Malformed { problem, expected } => Error::Malformed {
@@ -591,6 +624,12 @@ impl<'a> Loader<'a> {
 
     fn stream_fault(&self, f: StreamFault, outcomes: &[ChunkOutcome]) -> Error {
         match f {
+            StreamFault::Codec { problem, .. } if self.src.compression == Compression::Parquet => {
+                Error::Parquet {
+                    path: self.input.path.clone(),
+                    problem: format!("unreadable ({problem})"),
+                }
+            }
             StreamFault::Codec { problem, offset } => Error::Compressed {
                 path: self.input.path.clone(),
                 format: match self.src.compression {
@@ -664,10 +703,15 @@ fn peek<'a>(src: Source<'a>, path: &Path) -> Result<Cow<'a, [u8]>> {
     if src.compression == Compression::None {
         return Ok(Cow::Borrowed(&src.data[..src.data.len().min(PEEK)]));
     }
+    if let Some(plan) = src.parquet {
+        // A columnar file has no banner or header to guess from; only whether it holds rows.
+        return Ok(Cow::Borrowed(if plan.rows() > 0 { b"\n" } else { b"" }));
+    }
     let mut head = Vec::new();
     let r = source::decode_chunks(
         src.data,
         src.compression,
+        None,
         PEEK,
         usize::MAX,
         // Finding the frames walks the whole file; let its pages go as it does.
@@ -727,9 +771,11 @@ fn pick_columns(
             choice.needs_header() || {
                 let picked = columns::resolve(choice, None, delim)
                     .map_err(|_| fault("internal: positions resolve without a header".into()))?;
-                edgeline::looks_like_header_by(line, next, |l| {
-                    columns::parse_picked(l, &picked).ok()
-                })
+                let (mut s1, mut s2) = (Vec::new(), Vec::new());
+                edgeline::looks_like_header_parsed(
+                    columns::parse_picked(line, &picked, &mut s1).ok(),
+                    next.and_then(|l| columns::parse_picked(l, &picked, &mut s2).ok()),
+                )
             }
         }
     };
@@ -751,15 +797,18 @@ fn pick_columns(
             delim.name()
         ))
     })?;
-    let names: Vec<&[u8]> = if take {
+    let names: Vec<String> = if take {
+        let mut buf = Vec::new();
         columns::fields(line.strip_suffix(b"\r").unwrap_or(line), delim)
-            .map(|f| f.unwrap_or_default())
+            .map(|f| {
+                String::from_utf8_lossy(f.unwrap_or_default().unescaped(&mut buf)).into_owned()
+            })
             .collect()
     } else {
         Vec::new()
     };
     let describe = |i: usize| match names.get(i) {
-        Some(n) => format!("{} {:?}", i + 1, String::from_utf8_lossy(n)),
+        Some(n) => format!("{} {n:?}", i + 1),
         None => (i + 1).to_string(),
     };
     let note = format!(

@@ -183,6 +183,8 @@ impl Loader<'_> {
     pub(super) fn early_spiller(&self) -> Option<Spiller> {
         let text = match self.src.compression {
             Compression::None => self.src.data.len() as u64,
+            // Rendered rows take about 16 bytes each.
+            Compression::Parquet => self.src.parquet.map_or(0, |p| p.rows().saturating_mul(16)),
             _ => (self.src.data.len() as u64).saturating_mul(GUESSED_RATIO),
         };
         // About 16 bytes of text per edge line, 8 bytes of adjacency under construction.

@@ -19,12 +19,16 @@ impl Loader<'_> {
             || (TextTally::default(), Vec::new(), Vec::new()),
             |(t, outcomes, firsts), i, bytes, base| {
                 let mut first = None;
-                let o = scan::scan_chunk(i, bytes, base, &rules, |a, b| {
+                let o = scan::scan_chunk_at(i, bytes, base, &rules, |a, b, line_at| {
                     if first.is_none()
                         && let Some(tok) = [a, b].into_iter().find(|t| t.int.is_none())
                     {
-                        first =
-                            Some((tok.raw.as_ptr() as usize - bytes.as_ptr() as usize, tok.raw));
+                        // The id's own offset, unless it was unescaped out of the text.
+                        let at = (tok.raw.as_ptr() as usize)
+                            .checked_sub(bytes.as_ptr() as usize)
+                            .filter(|&at| at < bytes.len())
+                            .unwrap_or(line_at);
+                        first = Some((at, excerpt(tok.raw)));
                     }
                     t.edge(a.raw, b.raw);
                     true
@@ -32,7 +36,7 @@ impl Loader<'_> {
                 if let Some((at, raw)) = first {
                     // Lines of this piece before the id (0-based), counted once per piece.
                     let line = memchr::memchr_iter(b'\n', &bytes[..at]).count() as u64;
-                    firsts.push((i, line, base + at as u64, excerpt(raw)));
+                    firsts.push((i, line, base + at as u64, raw));
                 }
                 let go_on = o.error.is_none();
                 outcomes.push(o);
