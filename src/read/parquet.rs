@@ -133,7 +133,7 @@ pub fn plan(data: &[u8], choice: Option<&ColumnChoice>) -> Result<ParquetPlan, P
 }
 
 fn plan_unguarded(data: &[u8], choice: Option<&ColumnChoice>) -> Result<ParquetPlan, ParquetFault> {
-    if data.len() < 12 || !data.ends_with(b"PAR1") {
+    if data.len() < 12 || !data.ends_with(&crate::read::magic::PARQUET) {
         return Err(ParquetFault::Unreadable(
             "the file does not end with the Parquet footer's magic bytes: truncated?".into(),
         ));
