@@ -4,8 +4,6 @@
 use std::io::Read;
 use std::path::{Path, PathBuf};
 
-use rayon::prelude::*;
-
 use crate::read::parquet::{ParquetFault, ParquetPlan};
 
 use crate::error::{Error, Result};
@@ -372,22 +370,24 @@ pub fn decode_chunks(
                     return Ok(info);
                 }
             } else {
-                // Decode a batch of frames in parallel, then stitch them in order.
-                let batch = 2 * rayon::current_num_threads().max(1);
-                for group in frames.chunks(batch) {
-                    let decoded: Vec<Result<Vec<u8>, StreamFault>> = group
-                        .par_iter()
-                        .map(|&(s, e)| decode_zstd_frame(&data[s..e], s as u64))
-                        .collect();
-                    if let (Some(first), Some(last)) = (group.first(), group.last()) {
-                        consumed(first.0, last.1);
-                    }
-                    for d in decoded {
+                // Frames decode in parallel a few ahead of the one being stitched, in order.
+                let threads = rayon::current_num_threads().max(1);
+                let whole = in_order(
+                    frames.len(),
+                    2 * threads,
+                    threads,
+                    |i| {
+                        let (s, e) = frames[i];
+                        decode_zstd_frame(&data[s..e], s as u64)
+                    },
+                    |i, d| {
+                        consumed(frames[i].0, frames[i].1);
                         st.buf.extend_from_slice(&d?);
-                        if !st.drain(emit, false)? {
-                            return Ok(info);
-                        }
-                    }
+                        st.drain(emit, false)
+                    },
+                )?;
+                if !whole {
+                    return Ok(info);
                 }
             }
         }
@@ -398,15 +398,14 @@ pub fn decode_chunks(
                     offset: 0,
                 });
             };
-            // Decode a batch of row groups in parallel, then stitch them in order (as zstd frames).
-            let groups: Vec<usize> = (0..plan.row_groups()).collect();
-            let batch = 2 * rayon::current_num_threads().max(1);
-            for group in groups.chunks(batch) {
-                let decoded: Vec<Result<Vec<u8>, ParquetFault>> = group
-                    .par_iter()
-                    .map(|&rg| crate::read::parquet::render_row_group(data, plan, rg))
-                    .collect();
-                for d in decoded {
+            // Row groups decode in parallel a few ahead of the one being stitched (as frames).
+            let threads = rayon::current_num_threads().max(1);
+            let whole = in_order(
+                plan.row_groups(),
+                2 * threads,
+                threads,
+                |rg| crate::read::parquet::render_row_group(data, plan, rg),
+                |_, d| {
                     let text = d.map_err(|f| StreamFault::Codec {
                         problem: match f {
                             ParquetFault::Unreadable(p) | ParquetFault::Columns(p) => p,
@@ -414,10 +413,11 @@ pub fn decode_chunks(
                         offset: 0,
                     })?;
                     st.buf.extend_from_slice(&text);
-                    if !st.drain(emit, false)? {
-                        return Ok(info);
-                    }
-                }
+                    st.drain(emit, false)
+                },
+            )?;
+            if !whole {
+                return Ok(info);
             }
         }
         Compression::Gzip => {
@@ -438,6 +438,111 @@ pub fn decode_chunks(
     st.drain(emit, true)?;
     info.text_bytes = st.byte_base;
     Ok(info)
+}
+
+/// Run `work(i)` for `i` in `0..n` on `threads` scoped threads, never more than `window` past
+/// the result `emit` takes next, and hand the results to `emit` in order on this thread. `emit`
+/// returns false (or an error) to stop; work in flight then finishes and is dropped. Returns
+/// whether every result was taken. Unlike decoding in fixed batches, no worker waits for the
+/// slowest of a batch before starting on the next.
+fn in_order<T: Send, E>(
+    n: usize,
+    window: usize,
+    threads: usize,
+    work: impl Fn(usize) -> T + Sync,
+    mut emit: impl FnMut(usize, T) -> Result<bool, E>,
+) -> Result<bool, E> {
+    use std::collections::VecDeque;
+    use std::sync::{Condvar, Mutex, MutexGuard};
+    struct State<T> {
+        /// Results from index `base` on (`None` while in flight).
+        slots: VecDeque<Option<T>>,
+        base: usize,
+        /// Next index a worker claims.
+        next: usize,
+        stop: bool,
+        /// A worker's panic, re-raised on the emitting thread.
+        panic: Option<Box<dyn std::any::Any + Send>>,
+    }
+    let state = Mutex::new(State {
+        slots: VecDeque::new(),
+        base: 0,
+        next: 0,
+        stop: false,
+        panic: None,
+    });
+    let changed = Condvar::new();
+    // Nothing inside holds the lock across a panic, so a poisoned lock still guards sound state.
+    let lock = || state.lock().unwrap_or_else(|e| e.into_inner());
+    fn wait<'a, S>(cv: &Condvar, g: MutexGuard<'a, S>) -> MutexGuard<'a, S> {
+        cv.wait(g).unwrap_or_else(|e| e.into_inner())
+    }
+    std::thread::scope(|s| {
+        for _ in 0..threads.min(n) {
+            s.spawn(|| {
+                loop {
+                    let i = {
+                        let mut g = lock();
+                        loop {
+                            if g.stop || g.next >= n {
+                                return;
+                            }
+                            if g.next < g.base + window.max(1) {
+                                break;
+                            }
+                            g = wait(&changed, g);
+                        }
+                        g.next += 1;
+                        g.next - 1
+                    };
+                    let r = std::panic::catch_unwind(std::panic::AssertUnwindSafe(|| work(i)));
+                    let mut g = lock();
+                    match r {
+                        Ok(r) => {
+                            let k = i - g.base;
+                            while g.slots.len() <= k {
+                                g.slots.push_back(None);
+                            }
+                            g.slots[k] = Some(r);
+                        }
+                        Err(p) => {
+                            g.stop = true;
+                            g.panic = Some(p);
+                        }
+                    }
+                    changed.notify_all();
+                }
+            });
+        }
+        for i in 0..n {
+            let r = {
+                let mut g = lock();
+                loop {
+                    if let Some(p) = g.panic.take() {
+                        drop(g);
+                        std::panic::resume_unwind(p);
+                    }
+                    if matches!(g.slots.front(), Some(Some(_))) {
+                        break;
+                    }
+                    g = wait(&changed, g);
+                }
+                let Some(Some(r)) = g.slots.pop_front() else {
+                    unreachable!("the loop above waits until the front result is in");
+                };
+                g.base += 1;
+                changed.notify_all();
+                r
+            };
+            let go_on = emit(i, r);
+            if !matches!(go_on, Ok(true)) {
+                lock().stop = true;
+                changed.notify_all();
+                return go_on;
+            }
+        }
+        Ok(true)
+    })
 }
 
 fn stream_into(
@@ -600,6 +705,87 @@ mod tests {
             matches!(err, StreamFault::Codec { ref problem, .. } if problem.contains("truncated")),
             "{err:?}"
         );
+    }
+
+    #[test]
+    fn in_order_hands_results_over_in_order_within_the_window() {
+        use std::sync::atomic::{AtomicUsize, Ordering::SeqCst};
+        for (n, window, threads) in [(0, 4, 2), (1, 1, 1), (50, 1, 3), (200, 4, 2), (37, 8, 5)] {
+            let running = AtomicUsize::new(0);
+            let most = AtomicUsize::new(0);
+            let taken = AtomicUsize::new(0);
+            let mut seen = Vec::new();
+            let whole = in_order::<usize, ()>(
+                n,
+                window,
+                threads,
+                |i| {
+                    let now = running.fetch_add(1, SeqCst) + 1;
+                    most.fetch_max(now, SeqCst);
+                    // Later items finish first now and then, to exercise reordering.
+                    if i % 7 == 0 {
+                        std::thread::sleep(std::time::Duration::from_millis(1));
+                    }
+                    // Never more than `window` ahead of what was taken (plus the one taken
+                    // off the queue and not yet handed over).
+                    assert!(
+                        i < taken.load(SeqCst) + 1 + window.max(1),
+                        "{i} ran too far ahead"
+                    );
+                    running.fetch_sub(1, SeqCst);
+                    i * i
+                },
+                |i, r| {
+                    assert_eq!(r, i * i);
+                    seen.push(i);
+                    taken.fetch_add(1, SeqCst);
+                    Ok(true)
+                },
+            );
+            assert_eq!(whole, Ok(true));
+            assert_eq!(seen, (0..n).collect::<Vec<_>>());
+            assert!(most.load(SeqCst) <= threads.min(window.max(1)).max(1));
+        }
+        // Stopping early, and an error from `emit`, end the run.
+        let mut got = 0;
+        assert_eq!(
+            in_order::<usize, ()>(
+                100,
+                4,
+                2,
+                |i| i,
+                |_, _| {
+                    got += 1;
+                    Ok(got < 10)
+                }
+            ),
+            Ok(false)
+        );
+        assert_eq!(got, 10);
+        assert_eq!(
+            in_order(
+                100,
+                4,
+                2,
+                |i| i,
+                |i, _| if i == 5 { Err(i) } else { Ok(true) }
+            ),
+            Err(5)
+        );
+    }
+
+    #[test]
+    fn in_order_passes_a_workers_panic_on() {
+        let r = std::panic::catch_unwind(|| {
+            in_order::<usize, ()>(
+                20,
+                4,
+                2,
+                |i| if i == 3 { panic!("boom") } else { i },
+                |_, _| Ok(true),
+            )
+        });
+        assert!(r.is_err());
     }
 
     #[test]
