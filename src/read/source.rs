@@ -374,7 +374,7 @@ pub fn decode_chunks(
                 let threads = rayon::current_num_threads().max(1);
                 let whole = in_order(
                     frames.len(),
-                    2 * threads,
+                    threads + 1,
                     threads,
                     |i| {
                         let (s, e) = frames[i];
@@ -402,7 +402,7 @@ pub fn decode_chunks(
             let threads = rayon::current_num_threads().max(1);
             let whole = in_order(
                 plan.row_groups(),
-                2 * threads,
+                threads + 1,
                 threads,
                 |rg| crate::read::parquet::render_row_group(data, plan, rg),
                 |_, d| {
