@@ -9,7 +9,7 @@ mod common;
 
 use std::collections::BTreeSet;
 
-use common::{edge_labels, load_bytes, plumb};
+use common::{edge_labels, load_bytes, node_labels, plumb};
 use plumb::Error;
 use plumb::read::columns::{ColumnChoice, ColumnRef};
 use plumb::store::load::{HeaderChoice, LoadOptions};
@@ -96,12 +96,6 @@ fn expected(t: &Table) -> (BTreeSet<String>, BTreeSet<(String, String)>) {
     (nodes, edges)
 }
 
-fn labels(g: &plumb::Graph) -> BTreeSet<String> {
-    (0..g.node_count() as u32)
-        .map(|u| g.ids.label(u).into_owned())
-        .collect()
-}
-
 proptest! {
     #![proptest_config(ProptestConfig::with_cases(200))]
 
@@ -135,7 +129,7 @@ proptest! {
         };
         let g = load_bytes("t.csv", &bytes, &opts).unwrap();
         let (nodes, edges) = expected(&t);
-        prop_assert_eq!(labels(&g), nodes);
+        prop_assert_eq!(node_labels(&g), nodes);
         prop_assert_eq!(edge_labels(&g), edges);
         prop_assert!(g.intake.id_columns.is_some());
         prop_assert!(g.intake.header_line.is_some());
@@ -155,7 +149,7 @@ proptest! {
         let (nodes, edges) = expected(&t);
         for input in [bytes.clone(), common::zstd(&bytes)] {
             let g = load_bytes("t.csv", &input, &opts).unwrap();
-            prop_assert_eq!(labels(&g), nodes.clone());
+            prop_assert_eq!(node_labels(&g), nodes.clone());
             prop_assert_eq!(edge_labels(&g), edges.clone());
         }
     }

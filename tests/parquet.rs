@@ -7,7 +7,7 @@ mod common;
 use std::collections::BTreeSet;
 use std::sync::Arc;
 
-use common::{edge_labels, load_bytes, plumb};
+use common::{edge_labels, load_bytes, node_labels, plumb};
 use parquet::basic::Compression;
 use parquet::column::writer::ColumnWriter;
 use parquet::data_type::ByteArray;
@@ -92,12 +92,6 @@ fn expected(pairs: &[(String, String)]) -> (BTreeSet<String>, BTreeSet<(String, 
     (nodes, edges)
 }
 
-fn labels(g: &plumb::Graph) -> BTreeSet<String> {
-    (0..g.node_count() as u32)
-        .map(|u| g.ids.label(u).into_owned())
-        .collect()
-}
-
 fn columns(s: &str) -> LoadOptions {
     LoadOptions {
         columns: Some(ColumnChoice::parse(s).unwrap()),
@@ -150,7 +144,7 @@ proptest! {
             .map(|r| (r.0.to_string(), r.1.to_string()))
             .collect();
         let (nodes, edges) = expected(&pairs);
-        prop_assert_eq!(labels(&g), nodes);
+        prop_assert_eq!(node_labels(&g), nodes);
         prop_assert_eq!(edge_labels(&g), edges);
         prop_assert_eq!(g.intake.edge_lines, pairs.len() as u64);
         // The same rows as text give the same graph.
@@ -174,7 +168,7 @@ proptest! {
         );
         let g = load_bytes("s.parquet", &file, &LoadOptions::default()).unwrap();
         let (nodes, edges) = expected(&rows);
-        prop_assert_eq!(labels(&g), nodes);
+        prop_assert_eq!(node_labels(&g), nodes);
         prop_assert_eq!(edge_labels(&g), edges);
     }
 }

@@ -394,8 +394,19 @@ pub fn render_row_group(
 }
 
 fn render_unguarded(data: &[u8], plan: &ParquetPlan, rg: usize) -> Result<Vec<u8>, ParquetFault> {
-    let a = read_column(data, plan, rg, plan.cols[0])?;
-    let b = read_column(data, plan, rg, plan.cols[1])?;
+    // The crate's page errors do not say where: name the row group and its column.
+    let place = |col: usize, f: ParquetFault| match f {
+        ParquetFault::Unreadable(p) if !p.starts_with("row group") => {
+            ParquetFault::Unreadable(format!(
+                "row group {rg} (of {}), column {}: {p}",
+                plan.row_groups(),
+                col + 1
+            ))
+        }
+        other => other,
+    };
+    let a = read_column(data, plan, rg, plan.cols[0]).map_err(|f| place(plan.cols[0], f))?;
+    let b = read_column(data, plan, rg, plan.cols[1]).map_err(|f| place(plan.cols[1], f))?;
     let rows = plan.meta.row_group(rg).num_rows().max(0) as usize;
     let mut out = Vec::with_capacity(rows.min(MAX_RESERVE) * 16);
     let (mut ia, mut ib) = (0, 0);

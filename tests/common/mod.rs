@@ -22,6 +22,13 @@ pub fn data(name: &str) -> std::path::PathBuf {
         .join(name)
 }
 
+/// The graph's nodes by original id.
+pub fn node_labels(g: &Graph) -> BTreeSet<String> {
+    (0..g.node_count() as u32)
+        .map(|u| g.ids.label(u).into_owned())
+        .collect()
+}
+
 /// The graph's edges as pairs of original ids, each pair ordered.
 pub fn edge_labels(g: &Graph) -> BTreeSet<(String, String)> {
     let mut out = BTreeSet::new();
