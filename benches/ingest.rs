@@ -341,5 +341,6 @@ fn lattice_graph(n: u64, half_k: u64) -> Graph {
             len: n as usize,
         },
         intake: plumb::store::intake::Intake::generated("generated ring lattice", n, n * half_k, 0),
+        directions: None,
     }
 }

@@ -28,6 +28,7 @@ fn graph_of(csr: Csr) -> Graph {
         csr,
         ids: NodeIds::Range { first: 0, len: n },
         intake: Intake::generated("bench", n as u64, m, 0),
+        directions: None,
     }
 }
 

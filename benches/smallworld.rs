@@ -71,6 +71,7 @@ fn main() {
             len: n as usize,
         },
         intake: Intake::generated("bench", n as u64, m, 0),
+        directions: None,
         csr,
     };
     for references in [0usize, 2] {
@@ -92,9 +93,9 @@ fn main() {
             "full profile with small-world verdict, Watts-Strogatz n={n} k=10 p=0.1 ({m} edges), \
              {references} sampled references of each kind: {secs:.1} s after load \
              (sigma {:.0}, omega {:.3}, propensity {:.3})",
-            c.sigma.value(),
-            c.omega.value(),
-            c.propensity.value()
+            c.sigma.as_ref().unwrap().value(),
+            c.omega.as_ref().unwrap().value(),
+            c.propensity.as_ref().unwrap().value()
         );
         let stages: Vec<String> = p
             .stages

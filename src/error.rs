@@ -264,6 +264,40 @@ impl Error {
         }
     }
 
+    /// Where in the input the error is, for errors placed at a line or row.
+    pub fn position(&self) -> Option<&Position> {
+        match self {
+            Error::Malformed { pos, .. }
+            | Error::LineTooLong { pos, .. }
+            | Error::MatrixMarket { pos, .. } => Some(pos),
+            _ => None,
+        }
+    }
+
+    /// The file the error concerns, when there is one.
+    pub fn path(&self) -> Option<&std::path::Path> {
+        match self {
+            Error::Io { path, .. }
+            | Error::Malformed { path, .. }
+            | Error::LineTooLong { path, .. }
+            | Error::Empty { path, .. }
+            | Error::Compressed { path, .. }
+            | Error::Unsupported { path, .. }
+            | Error::Binary { path, .. }
+            | Error::MatrixMarket { path, .. }
+            | Error::Parquet { path, .. }
+            | Error::Columns { path, .. }
+            | Error::TooManyNodes { path, .. }
+            | Error::DegreeTooLarge { path, .. }
+            | Error::OverBudget { path, .. }
+            | Error::ScratchFull { path, .. }
+            | Error::Store { path, .. }
+            | Error::Output { path, .. }
+            | Error::Report { path, .. } => Some(path),
+            Error::Parameters { .. } => None,
+        }
+    }
+
     pub(crate) fn io(
         path: impl Into<PathBuf>,
         action: &'static str,

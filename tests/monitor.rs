@@ -5,7 +5,7 @@ mod common;
 
 use std::process::Command;
 
-use common::graph_of;
+use common::{graph_of, plumb};
 
 use plumb::Graph;
 use plumb::models::generate;
@@ -103,14 +103,6 @@ fn a_planted_fall_in_transitivity_alerts_every_time() {
         );
         assert!(t.alert, "seed {seed}: the planted change was missed");
     }
-}
-
-fn plumb(args: &[&str]) -> std::process::Output {
-    Command::new(env!("CARGO_BIN_EXE_plumb"))
-        .args(args)
-        .current_dir(env!("CARGO_MANIFEST_DIR"))
-        .output()
-        .unwrap()
 }
 
 fn week(w: u32) -> String {

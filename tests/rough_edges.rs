@@ -295,6 +295,7 @@ fn hyperball_options_out_of_range_are_errors_not_panics() {
     let gr = plumb::Graph {
         ids: plumb::store::graph::NodeIds::Range { first: 0, len: 50 },
         intake: plumb::store::intake::Intake::generated("lattice", 50, g.edge_count(), 0),
+        directions: None,
         csr: g,
     };
     let opts = plumb::profile::ProfileOptions {

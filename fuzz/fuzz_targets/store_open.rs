@@ -18,6 +18,7 @@ fuzz_target!(init: {
             let _ = g.ids.label(u);
         }
         let _ = g.csr.verify();
+        let _ = g.verify_directions();
         std::hint::black_box(sum);
     }
 });

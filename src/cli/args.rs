@@ -3,8 +3,8 @@
 
 use std::path::PathBuf;
 
-use clap::{Args as ClapArgs, Parser, Subcommand, ValueEnum};
-use plumb::store::load::{BuildChoice, FormatChoice, HeaderChoice, LoadOptions};
+use clap::{Args as ClapArgs, Parser, Subcommand};
+use plumb::profile::settings::{LoadSettings, PlanSettings, parse_fraction};
 
 #[derive(Parser, Debug)]
 #[command(
@@ -46,7 +46,7 @@ pub(crate) enum Command {
         #[arg(long, value_name = "FILE")]
         per_node: Option<PathBuf>,
         #[command(flatten)]
-        plan: PlanArgs,
+        plan: PlanSettings,
     },
     /// Profile a new export, add it to a history directory, and compare it with the previous
     /// snapshot and the pinned baseline; exits 6 when a significant change beyond its
@@ -68,7 +68,7 @@ pub(crate) enum Command {
         #[command(flatten)]
         check: CheckArgs,
         #[command(flatten)]
-        plan: PlanArgs,
+        plan: PlanSettings,
     },
     /// Compare two profiles or two graphs (profiled first; then also node and edge churn by
     /// original id); exits 6 when a significant change beyond its threshold is found.
@@ -80,7 +80,7 @@ pub(crate) enum Command {
         #[command(flatten)]
         check: CheckArgs,
         #[command(flatten)]
-        plan: PlanArgs,
+        plan: PlanSettings,
     },
     /// Write a history's trend page: each figure over time with interval bars, alerts
     /// marked.
@@ -253,282 +253,19 @@ pub(crate) struct CheckArgs {
     pub(crate) verdict_json: Option<PathBuf>,
 }
 
-/// How each figure group is computed: exact within a time budget, or estimated to a margin.
-#[derive(ClapArgs, Debug)]
-pub(crate) struct PlanArgs {
-    /// Seconds each exact figure group may be predicted to take on this machine; beyond it
-    /// the group is estimated with intervals.
-    #[arg(long, value_name = "SECONDS", default_value_t = plumb::profile::DEFAULT_EXACT_SECONDS,
-          value_parser = parse_seconds)]
-    exact_within: f64,
-    /// Seconds the exact diameter search may take when all-pairs distances do not run; beyond
-    /// it the diameter is reported as certain bounds.
-    #[arg(long, value_name = "SECONDS", default_value_t = plumb::profile::DEFAULT_DIAMETER_SECONDS,
-          value_parser = parse_seconds)]
-    diameter_within: f64,
-    /// Clustering: exact or sampled by the budget (auto), or always one of them.
-    #[arg(long, value_enum, default_value_t = ClusteringArg::Auto)]
-    clustering: ClusteringArg,
-    /// Distances: exact or estimated by the budget (auto), exact all-pairs, BFS from sampled
-    /// sources, or HyperBall.
-    #[arg(long, value_enum, default_value_t = DistancesArg::Auto)]
-    distances: DistancesArg,
-    /// Half-width of the transitivity and average-clustering intervals when sampled.
-    #[arg(long, value_name = "PLUS_MINUS", default_value = "0.002", value_parser = parse_fraction)]
-    clustering_margin: f64,
-    /// Half-width of the same intervals relative to the figure (5% or 0.05); the narrower of the
-    /// two applies, so small figures stay readable. 0 keeps only the absolute margin.
-    #[arg(long, value_name = "FRACTION", default_value = "5%", value_parser = parse_fraction)]
-    clustering_relative: f64,
-    /// Half-width of the mean-distance interval when estimated, relative to the mean
-    /// (0.01 or 1%).
-    #[arg(long, value_name = "FRACTION", default_value = "1%", value_parser = parse_fraction)]
-    distance_margin: f64,
-    /// Confidence level of every interval.
-    #[arg(long, value_name = "LEVEL", default_value = "95%", value_parser = parse_fraction)]
-    level: f64,
-    /// Most BFS sources a distance estimate may use.
-    #[arg(long, value_name = "N", default_value_t = 4096)]
-    max_sources: usize,
-    /// HyperBall registers per node (a power of two, 16 to 65536).
-    #[arg(long, value_name = "N", default_value_t = 64, value_parser = parse_registers)]
-    ball_registers: u32,
-    /// HyperBall runs with independent hash seeds (their spread gives the intervals).
-    #[arg(long, value_name = "N", default_value_t = 5, value_parser = clap::value_parser!(u32).range(2..))]
-    ball_runs: u32,
-    /// Figure groups to compute besides size, degrees and components (always shown):
-    /// clustering, distances, small-world (which brings in the other two), or all.
-    #[arg(
-        long,
-        value_enum,
-        value_delimiter = ',',
-        default_value = "all",
-        value_name = "GROUPS"
-    )]
-    figures: Vec<FigureGroup>,
-    /// Sampled reference graphs of each kind (random with the same n and m; random with the
-    /// same degrees) for the small-world comparison (default: 4 when they fit the budget,
-    /// else none; analytic references are always given).
-    #[arg(long, value_name = "N")]
-    reference_graphs: Option<usize>,
-    /// Attempted double-edge swaps per edge for the degree-preserving references.
-    #[arg(long, value_name = "Q", default_value_t = 2.0)]
-    swaps_per_edge: f64,
-    /// Seed of every random choice (same seed, input and methods: same output on any thread
-    /// count).
-    #[arg(long, default_value_t = 1)]
-    seed: u64,
-}
-
-#[derive(ValueEnum, Clone, Copy, Debug, PartialEq, Eq)]
-pub(crate) enum FigureGroup {
-    All,
-    Clustering,
-    Distances,
-    SmallWorld,
-}
-
-#[derive(ValueEnum, Clone, Copy, Debug)]
-pub(crate) enum ClusteringArg {
-    Auto,
-    Exact,
-    Sampled,
-}
-
-#[derive(ValueEnum, Clone, Copy, Debug)]
-pub(crate) enum DistancesArg {
-    Auto,
-    Exact,
-    Sources,
-    Ball,
-}
-
-/// "0.95", "95%" -> 0.95; must lie strictly between 0 and 1.
-pub(crate) fn parse_fraction(s: &str) -> Result<f64, String> {
-    let v = match s.strip_suffix('%') {
-        Some(p) => p.trim().parse::<f64>().map(|x| x / 100.0),
-        None => s.trim().parse::<f64>(),
-    }
-    .map_err(|_| format!("expected a fraction such as 0.95 or 95%, got {s:?}"))?;
-    if v > 0.0 && v < 1.0 {
-        Ok(v)
-    } else {
-        Err(format!("{s} is not strictly between 0 and 1"))
-    }
-}
-
-fn parse_seconds(s: &str) -> Result<f64, String> {
-    match s.trim().trim_end_matches('s').parse::<f64>() {
-        Ok(v) if v >= 0.0 && v.is_finite() => Ok(v),
-        _ => Err(format!("expected seconds such as 20 or 0.5, got {s:?}")),
-    }
-}
-
-fn parse_registers(s: &str) -> Result<u32, String> {
-    let v: u32 = s
-        .parse()
-        .map_err(|_| format!("expected a number, got {s:?}"))?;
-    if v.is_power_of_two() && (16..=65536).contains(&v) {
-        Ok(v)
-    } else {
-        Err(format!("{v} is not a power of two from 16 to 65536"))
-    }
-}
-
-impl PlanArgs {
-    pub(crate) fn options(&self) -> plumb::profile::ProfileOptions {
-        use plumb::profile::plan::{Choice, DistanceEstimator};
-        let (distances, distance_estimator) = match self.distances {
-            DistancesArg::Auto => (Choice::Auto, DistanceEstimator::Cheaper),
-            DistancesArg::Exact => (Choice::Exact, DistanceEstimator::Cheaper),
-            DistancesArg::Sources => (Choice::Estimate, DistanceEstimator::Sources),
-            DistancesArg::Ball => (Choice::Estimate, DistanceEstimator::Ball),
-        };
-        let defaults = plumb::profile::ProfileOptions::default();
-        plumb::profile::ProfileOptions {
-            exact_seconds: self.exact_within,
-            diameter_seconds: self.diameter_within,
-            clustering: match self.clustering {
-                ClusteringArg::Auto => Choice::Auto,
-                ClusteringArg::Exact => Choice::Exact,
-                ClusteringArg::Sampled => Choice::Estimate,
-            },
-            distances,
-            distance_estimator,
-            clustering_margin: plumb::profile::Margin {
-                absolute: self.clustering_margin,
-                relative: self.clustering_relative,
-                ..defaults.clustering_margin
-            },
-            distance_tolerance: self.distance_margin,
-            max_sources: self.max_sources.max(1),
-            ball: plumb::estimate::hyperball::BallOptions {
-                log2_registers: self.ball_registers.trailing_zeros() as u8,
-                repeats: self.ball_runs,
-                level: self.level,
-                seed: self.seed,
-            },
-            level: self.level,
-            seed: self.seed,
-            reference_graphs: self.reference_graphs,
-            groups: {
-                let has = |g| self.figures.contains(&FigureGroup::All) || self.figures.contains(&g);
-                plumb::profile::Groups {
-                    clustering: has(FigureGroup::Clustering),
-                    distances: has(FigureGroup::Distances),
-                    small_world: has(FigureGroup::SmallWorld),
-                }
-            },
-            swaps_per_edge: self.swaps_per_edge.max(0.0),
-            ..defaults
-        }
-    }
-}
-
+/// An input file and how to read it.
 #[derive(ClapArgs, Debug)]
 pub(crate) struct InputArgs {
-    /// Edge list, Matrix Market or store file; plain, zstd or gzip (sniffed, not by name);
-    /// `-` reads standard input.
+    /// Edge list, Matrix Market, Parquet or store file; plain, zstd or gzip (sniffed, not by
+    /// name); `-` reads standard input.
     pub(crate) input: PathBuf,
-    /// Input grammar.
-    #[arg(long, value_enum, default_value_t = Grammar::Auto)]
-    pub(crate) format: Grammar,
-    /// Whether the first data line is a column header.
-    #[arg(long, value_enum, default_value_t = HeaderArg::Auto)]
-    pub(crate) header: HeaderArg,
-    /// The two id columns of a delimited export (CSV with quoting, tab- or blank-separated) or a
-    /// Parquet file: names or 1-based positions, e.g. `sender,recipient` or `2,4` (default: the
-    /// first two columns).
-    #[arg(long, value_name = "A,B", value_parser = plumb::read::columns::ColumnChoice::parse)]
-    pub(crate) columns: Option<plumb::read::columns::ColumnChoice>,
-    /// Skip malformed lines (counted, first few shown) instead of stopping at the first.
-    #[arg(long)]
-    pub(crate) skip_malformed: bool,
-    /// Longest line accepted, in bytes.
-    #[arg(long, default_value_t = 1 << 20, value_name = "BYTES")]
-    pub(crate) max_line: usize,
-    /// Memory the build may use, e.g. 8G (default: 90% of the memory available now).
-    #[arg(long, value_name = "SIZE", value_parser = plumb::store::limits::parse_size)]
-    pub(crate) memory_budget: Option<u64>,
-    /// Where the adjacency is built: in memory when it fits the budget, else on disk (auto);
-    /// memory only (stop when over budget); or always on disk.
-    #[arg(long, value_enum, default_value_t = BuildArg::Auto)]
-    pub(crate) build: BuildArg,
-    /// Folder for a build on disk's sorted runs (default: beside the output store, else the
-    /// system's temporary folder); removed on every exit, Ctrl-C included.
-    #[arg(long, value_name = "DIR")]
-    pub(crate) scratch: Option<PathBuf>,
-    /// Space a build on disk leaves free on the scratch disk; it refuses to start otherwise.
-    #[arg(long, value_name = "SIZE", default_value = "1G", value_parser = parse_size_or_zero)]
-    pub(crate) scratch_keep_free: u64,
-}
-
-fn parse_size_or_zero(s: &str) -> Result<u64, plumb::error::ParamError> {
-    if s.trim() == "0" {
-        return Ok(0);
-    }
-    plumb::store::limits::parse_size(s)
-}
-
-#[derive(ValueEnum, Clone, Copy, Debug)]
-pub(crate) enum BuildArg {
-    /// In memory when it fits --memory-budget and is under 3 GiB, else on disk (when the scratch
-    /// disk has room; larger graphs build faster and leaner there).
-    Auto,
-    /// In memory only.
-    Memory,
-    /// On disk: sorted runs merged into a mapped store.
-    Disk,
-}
-
-#[derive(ValueEnum, Clone, Copy, Debug)]
-pub(crate) enum Grammar {
-    /// Matrix Market if the banner is there, else an edge list.
-    Auto,
-    /// Two ids per line.
-    Edges,
-    /// Matrix Market coordinate format.
-    Mtx,
-}
-
-#[derive(ValueEnum, Clone, Copy, Debug)]
-pub(crate) enum HeaderArg {
-    /// Guess from the first two data lines.
-    Auto,
-    /// The first data line is a header.
-    Skip,
-    /// There is no header line.
-    None,
+    #[command(flatten)]
+    pub(crate) load: LoadSettings,
 }
 
 impl InputArgs {
-    pub(crate) fn options(&self) -> LoadOptions {
-        LoadOptions {
-            format: match self.format {
-                Grammar::Auto => FormatChoice::Auto,
-                Grammar::Edges => FormatChoice::EdgeList,
-                Grammar::Mtx => FormatChoice::MatrixMarket,
-            },
-            header: match self.header {
-                HeaderArg::Auto => HeaderChoice::Auto,
-                HeaderArg::Skip => HeaderChoice::Skip,
-                HeaderArg::None => HeaderChoice::None,
-            },
-            skip_malformed: self.skip_malformed,
-            max_line: self.max_line,
-            memory_budget: self
-                .memory_budget
-                .unwrap_or_else(plumb::store::limits::default_memory_budget),
-            build: match self.build {
-                BuildArg::Auto => BuildChoice::Auto,
-                BuildArg::Memory => BuildChoice::Memory,
-                BuildArg::Disk => BuildChoice::Disk,
-            },
-            scratch: self.scratch.clone(),
-            scratch_keep_free: self.scratch_keep_free,
-            columns: self.columns.clone(),
-            ..LoadOptions::default()
-        }
+    pub(crate) fn options(&self) -> plumb::store::load::LoadOptions {
+        self.load.options()
     }
 }
 

@@ -8,10 +8,11 @@ use std::path::{Path, PathBuf};
 use std::process::ExitCode;
 
 pub(crate) use args::Args;
-use args::{CheckArgs, Command, InputArgs, PlanArgs, SynthModel};
+use args::{CheckArgs, Command, InputArgs, SynthModel};
 use plumb::error::{Error, ErrorClass};
 use plumb::outfile::{refuse_overwrite, write_atomic};
 use plumb::output::text as show;
+use plumb::profile::settings::PlanSettings;
 use plumb::store::load::load;
 
 /// Exit codes (documented in the README).
@@ -157,7 +158,7 @@ fn profile(
     json: Option<PathBuf>,
     html: Option<PathBuf>,
     per_node: Option<PathBuf>,
-    plan: &PlanArgs,
+    plan: &PlanSettings,
     bars: &bars::Bars,
 ) -> Result<(), Error> {
     let outputs = [json.as_deref(), html.as_deref(), per_node.as_deref()];
@@ -231,7 +232,7 @@ fn track(
     input: &InputArgs,
     opts: &plumb::monitor::track::TrackOptions,
     check: &CheckArgs,
-    plan: &PlanArgs,
+    plan: &PlanSettings,
     bars: &bars::Bars,
 ) -> Result<ExitCode, Error> {
     let t = plumb::monitor::track::track(
@@ -271,11 +272,11 @@ fn track(
                 text.push_str("  first snapshot: it is the baseline; nothing to compare yet\n");
             }
             for (i, d) in t.comparisons.iter().enumerate() {
-                text.push_str(&plumb::output::changes::drift_text(d, None));
+                text.push_str(&plumb::monitor::changes::drift_text(d, None));
                 if i == 0
                     && let Some(c) = &t.churn_since_previous
                 {
-                    text.push_str(&plumb::output::changes::sketch_churn_text(c));
+                    text.push_str(&plumb::monitor::changes::sketch_churn_text(c));
                 }
             }
             text
@@ -288,7 +289,7 @@ fn compare(
     before: &Path,
     after: &Path,
     check: &CheckArgs,
-    plan: &PlanArgs,
+    plan: &PlanSettings,
     bars: &bars::Bars,
 ) -> Result<ExitCode, Error> {
     let c = plumb::monitor::compare::compare(
@@ -303,9 +304,9 @@ fn compare(
         check.verdict_json.as_deref(),
         || plumb::output::json::to_json("comparison", &c),
         || {
-            let mut t = plumb::output::changes::drift_text(&c.drift, c.churn.as_ref());
+            let mut t = plumb::monitor::changes::drift_text(&c.drift, c.churn.as_ref());
             if let Some(e) = &c.estimated_churn {
-                t.push_str(&plumb::output::changes::sketch_churn_text(e));
+                t.push_str(&plumb::monitor::changes::sketch_churn_text(e));
             }
             t
         },
@@ -360,13 +361,22 @@ fn verify(store: &Path) -> Result<(), Error> {
         path: store.to_path_buf(),
         problem: v.to_string(),
     })?;
+    g.verify_directions().map_err(|problem| Error::Store {
+        path: store.to_path_buf(),
+        problem,
+    })?;
     println!(
         "{}: ok — {} nodes, {} edges; checksum and layout checked on open ({:.3} s), lists \
-         sorted and symmetric ({:.3} s)",
+         sorted and symmetric{} ({:.3} s)",
         store.display(),
         show::count(g.node_count() as u64),
         show::count(g.edge_count()),
         opened,
+        if g.directions.is_some() {
+            ", directions mirrored"
+        } else {
+            ""
+        },
         t.elapsed().as_secs_f64() - opened
     );
     Ok(())

@@ -330,6 +330,7 @@ mod tests {
             },
             intake: Intake::generated("test", n as u64, csr.edge_count(), 0),
             csr,
+            directions: None,
         }
     }
 

@@ -57,13 +57,19 @@ pub fn wedge_total(g: &Csr) -> u128 {
 
 /// c_v for every node (0 where the degree is below 2).
 pub fn local(g: &Csr, t: &Triangles) -> Vec<f64> {
+    local_from(g, &t.per_node)
+}
+
+/// c_v = 2 t_v / (d_v (d_v - 1)) for every node from its triangle count `per_node[v]` (0 where
+/// the degree is below 2), Watts and Strogatz (1998).
+pub fn local_from(g: &Csr, per_node: &[u64]) -> Vec<f64> {
     (0..g.node_count() as u32)
         .map(|v| {
             let d = g.degree(v) as f64;
             if d < 2.0 {
                 0.0
             } else {
-                2.0 * t.per_node[v as usize] as f64 / (d * (d - 1.0))
+                2.0 * per_node[v as usize] as f64 / (d * (d - 1.0))
             }
         })
         .collect()

@@ -8,5 +8,6 @@ pub mod components;
 pub mod cost;
 pub mod degrees;
 pub mod diameter;
+pub mod directed;
 pub mod distances;
 pub mod triangles;

@@ -22,7 +22,7 @@ pub struct Triangles {
 }
 
 /// Orientation: keep edge u -> v when (deg u, u) < (deg v, v).
-fn oriented(g: &Csr) -> Csr {
+pub(crate) fn oriented(g: &Csr) -> Csr {
     let deg = |u: u32| g.degree(u);
     Csr::from_lists(g.node_count(), |u, out| {
         let du = deg(u);
@@ -41,6 +41,16 @@ fn oriented(g: &Csr) -> Csr {
 /// rayon's per-task state could hold several per thread at once. The threads take blocks of
 /// nodes from a shared counter, so the load balances; integer sums make the order irrelevant.
 fn over_stamped(dag: &Csr, visit: impl Fn(&[u32], u32) -> u64 + Sync) -> u64 {
+    over_stamped_with(dag, || (), |stamp, _, u| visit(stamp, u))
+}
+
+/// [`over_stamped`] with per-thread state `S` beside the stamps (made once per thread by
+/// `init`), for visits that keep more per node of N+(u) than membership.
+pub(crate) fn over_stamped_with<S>(
+    dag: &Csr,
+    init: impl Fn() -> S + Sync,
+    visit: impl Fn(&[u32], &mut S, u32) -> u64 + Sync,
+) -> u64 {
     const NODES: usize = 1024;
     let n = dag.node_count();
     let next = AtomicUsize::new(0);
@@ -49,6 +59,7 @@ fn over_stamped(dag: &Csr, visit: impl Fn(&[u32], u32) -> u64 + Sync) -> u64 {
         .map(|_| {
             let mut stamp: Vec<u32> = crate::store::pages::with_capacity(n);
             stamp.resize(n, u32::MAX);
+            let mut state = init();
             let mut sum = 0;
             loop {
                 let start = next.fetch_add(NODES, Relaxed);
@@ -59,7 +70,7 @@ fn over_stamped(dag: &Csr, visit: impl Fn(&[u32], u32) -> u64 + Sync) -> u64 {
                     for &w in dag.neighbors(u) {
                         stamp[w as usize] = u;
                     }
-                    sum += visit(&stamp, u);
+                    sum += visit(&stamp, &mut state, u);
                 }
             }
         })

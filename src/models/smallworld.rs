@@ -118,12 +118,15 @@ pub struct Coefficients {
     pub clustering: String,
     /// Which reference gave C_r and L_r.
     pub compared_with: String,
-    /// sigma = (C/C_r)/(L/L_r) (Humphries & Gurney, PLoS ONE 3, 2008).
-    pub sigma: Figure,
-    /// omega = L_r/L − C/C_l (Telesford et al., Brain Connectivity 1, 2011).
-    pub omega: Figure,
-    /// Small-world propensity phi (Muldoon, Bridgeford & Bassett, Sci. Rep. 6, 2016).
-    pub propensity: Figure,
+    /// sigma = (C/C_r)/(L/L_r) (Humphries & Gurney, PLoS ONE 3, 2008); `None` when undefined
+    /// (the random reference has no clustering).
+    pub sigma: Option<Figure>,
+    /// omega = L_r/L − C/C_l (Telesford et al., Brain Connectivity 1, 2011); `None` when
+    /// undefined (the ring lattice of degree under 4 has no clustering).
+    pub omega: Option<Figure>,
+    /// Small-world propensity phi (Muldoon, Bridgeford & Bassett, Sci. Rep. 6, 2016); `None`
+    /// when undefined (the lattice and random references tie in clustering or in distance).
+    pub propensity: Option<Figure>,
     /// Plain-words readings that respect the intervals.
     pub verdicts: Vec<String>,
 }
@@ -271,11 +274,18 @@ fn propagate(
     name: &str,
     level: f64,
     seed: u64,
-) -> Figure {
+) -> Option<Figure> {
     let point: Vec<f64> = inputs.iter().map(|x| x.value).collect();
     let value = f(&point);
+    // A zero denominator (no clustering in a reference) leaves the coefficient undefined.
+    if !value.is_finite() {
+        return None;
+    }
     if inputs.iter().all(|x| x.se == 0.0) {
-        return Figure::exact(value, &format!("{name}, from exact or analytic inputs"));
+        return Some(Figure::exact(
+            value,
+            &format!("{name}, from exact or analytic inputs"),
+        ));
     }
     let mut rng = ChaCha8Rng::seed_from_u64(seed);
     let mut draws: Vec<f64> = (0..DRAWS)
@@ -294,12 +304,14 @@ fn propagate(
         })
         .filter(|v| v.is_finite())
         .collect();
-    if draws.len() < 2 {
-        return Figure::exact(value, name);
+    // Most draws undefined: the inputs' errors reach a zero denominator, so no interval
+    // can be given, and the value alone would claim a precision it lacks.
+    if draws.len() < DRAWS / 2 {
+        return None;
     }
     let se = mean_variance(&draws).1.sqrt();
     draws.sort_by(f64::total_cmp);
-    Figure::estimate(
+    Some(Figure::estimate(
         value,
         &format!(
             "{name}; interval by Monte Carlo propagation of the inputs' errors ({DRAWS} draws)"
@@ -307,40 +319,37 @@ fn propagate(
         DRAWS as u64,
         se,
         percentile_interval(&draws, level, value),
-    )
+    ))
 }
 
-fn verdicts(sigma: &Figure, omega: &Figure, phi: &Figure) -> Vec<String> {
+fn verdicts(sigma: Option<&Figure>, omega: Option<&Figure>, phi: Option<&Figure>) -> Vec<String> {
     let span = |f: &Figure| match f.interval() {
         Some(iv) => (iv.low, iv.high),
         None => (f.value(), f.value()),
     };
     let mut out = Vec::new();
-    let (lo, hi) = span(sigma);
-    out.push(if lo > 1.0 {
-        "sigma above 1: small-world by sigma".to_string()
-    } else if hi < 1.0 {
-        "sigma below 1: not small-world by sigma".to_string()
-    } else {
-        "sigma undecided: its interval straddles 1".to_string()
+    out.push(match sigma.map(span) {
+        None => "sigma undefined: the random reference has no clustering".to_string(),
+        Some((lo, _)) if lo > 1.0 => "sigma above 1: small-world by sigma".to_string(),
+        Some((_, hi)) if hi < 1.0 => "sigma below 1: not small-world by sigma".to_string(),
+        Some(_) => "sigma undecided: its interval straddles 1".to_string(),
     });
-    let (lo, hi) = span(omega);
-    out.push(if lo > -0.5 && hi < 0.5 {
-        "omega within (-0.5, 0.5): small-world by omega".to_string()
-    } else if hi <= -0.5 {
-        "omega at or below -0.5: lattice-like".to_string()
-    } else if lo >= 0.5 {
-        "omega at or above 0.5: random-like".to_string()
-    } else {
-        "omega undecided: its interval straddles -0.5 or 0.5".to_string()
+    out.push(match omega.map(span) {
+        None => "omega undefined: the ring lattice of this degree has no clustering".to_string(),
+        Some((lo, hi)) if lo > -0.5 && hi < 0.5 => {
+            "omega within (-0.5, 0.5): small-world by omega".to_string()
+        }
+        Some((_, hi)) if hi <= -0.5 => "omega at or below -0.5: lattice-like".to_string(),
+        Some((lo, _)) if lo >= 0.5 => "omega at or above 0.5: random-like".to_string(),
+        Some(_) => "omega undecided: its interval straddles -0.5 or 0.5".to_string(),
     });
-    let (lo, hi) = span(phi);
-    out.push(if lo > 0.6 {
-        "propensity above 0.6: small-world by propensity".to_string()
-    } else if hi < 0.6 {
-        "propensity below 0.6: not small-world by propensity".to_string()
-    } else {
-        "propensity undecided: its interval straddles 0.6".to_string()
+    out.push(match phi.map(span) {
+        None => "propensity undefined: the lattice and random references tie".to_string(),
+        Some((lo, _)) if lo > 0.6 => "propensity above 0.6: small-world by propensity".to_string(),
+        Some((_, hi)) if hi < 0.6 => {
+            "propensity below 0.6: not small-world by propensity".to_string()
+        }
+        Some(_) => "propensity undecided: its interval straddles 0.6".to_string(),
     });
     out
 }
@@ -410,7 +419,7 @@ pub fn compare(o: &Observed, references: Vec<Reference>, level: f64, seed: u64) 
             level,
             seed ^ 2,
         );
-        let v = verdicts(&sigma, &omega, &phi);
+        let v = verdicts(sigma.as_ref(), omega.as_ref(), phi.as_ref());
         coefficients.push(Coefficients {
             clustering: label.into(),
             compared_with: random.name.clone(),

@@ -156,7 +156,16 @@ fn figure_rows(
     let d = &p.degrees;
     let exact = |v: f64, what: &str| Figure::exact(v, what);
     rows.push(("nodes".into(), exact(d.nodes as f64, "count"), 0));
-    rows.push(("edges".into(), exact(d.edges as f64, "count"), 0));
+    let symmetrised = if p.directed.is_some() {
+        " (symmetrised: u–v when u → v or v → u; every figure below the directed ones is on it)"
+    } else {
+        ""
+    };
+    rows.push((
+        format!("edges{symmetrised}"),
+        exact(d.edges as f64, "count"),
+        0,
+    ));
     rows.push(("mean degree".into(), exact(d.mean, "2m/n"), 3));
     rows.push((
         "components".into(),
@@ -168,6 +177,60 @@ fn figure_rows(
         exact(p.components.giant_fraction, "union-find"),
         4,
     ));
+    if let Some(k) = &p.directed {
+        rows.push((
+            "directed edges".into(),
+            exact(k.directed_edges as f64, "count"),
+            0,
+        ));
+        rows.push((
+            "mutual pairs (listed both ways)".into(),
+            exact(k.mutual_pairs as f64, "count"),
+            0,
+        ));
+        if let Some(r) = k.reciprocity {
+            rows.push((
+                "reciprocity".into(),
+                exact(r, "2 · mutual pairs / directed edges"),
+                4,
+            ));
+        }
+        rows.push((
+            "largest out-degree".into(),
+            exact(k.out_degree.max as f64, "count"),
+            0,
+        ));
+        rows.push((
+            "largest in-degree".into(),
+            exact(k.in_degree.max as f64, "count"),
+            0,
+        ));
+        rows.push((
+            "strongly connected components".into(),
+            exact(k.strong_components as f64, "Tarjan 1972"),
+            0,
+        ));
+        rows.push((
+            "share of nodes in the largest strongly connected component".into(),
+            exact(k.largest_strong_fraction, "Tarjan 1972"),
+            4,
+        ));
+        if let Some(c) = &k.clustering {
+            rows.push((
+                "directed clustering, average (Fagiolo total)".into(),
+                exact(c.average, "Fagiolo 2007, eq. 9"),
+                6,
+            ));
+            rows.push((
+                "directed clustering, ratio (Fagiolo total)".into(),
+                exact(
+                    c.transitivity,
+                    "Fagiolo 2007, eq. 9, summed before dividing",
+                ),
+                6,
+            ));
+        }
+    }
     if let Some(c) = &p.clustering {
         rows.push(("triangles".into(), c.triangles.clone(), 0));
         rows.push(("transitivity".into(), c.transitivity.clone(), 6));
@@ -193,13 +256,17 @@ fn figure_rows(
     }
     if let Some(sw) = &p.small_world {
         for c in &sw.coefficients {
-            rows.push((format!("sigma, with {}", c.clustering), c.sigma.clone(), 3));
-            rows.push((format!("omega, with {}", c.clustering), c.omega.clone(), 3));
-            rows.push((
-                format!("small-world propensity, with {}", c.clustering),
-                c.propensity.clone(),
-                3,
-            ));
+            // An undefined coefficient (a reference without clustering) has no row; the
+            // verdicts below say why.
+            for (name, f) in [
+                ("sigma", &c.sigma),
+                ("omega", &c.omega),
+                ("small-world propensity", &c.propensity),
+            ] {
+                if let Some(f) = f {
+                    rows.push((format!("{name}, with {}", c.clustering), f.clone(), 3));
+                }
+            }
         }
     }
 
@@ -436,10 +503,13 @@ fn coefficient_chart(sw: &SmallWorld, charts: &mut Vec<Chart>) {
         .enumerate()
         .flat_map(|(i, c)| {
             [
-                point(2.0 * i as f64 + 1.0, &c.omega),
-                point(2.0 * i as f64 + 2.0, &c.propensity),
+                c.omega.as_ref().map(|f| point(2.0 * i as f64 + 1.0, f)),
+                c.propensity
+                    .as_ref()
+                    .map(|f| point(2.0 * i as f64 + 2.0, f)),
             ]
         })
+        .flatten()
         .collect();
     if !pts.is_empty() {
         let x = Axis::categories("coefficient (clustering used)", &refs);

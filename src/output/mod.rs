@@ -1,7 +1,6 @@
 //! Output: the profile as text, HTML with SVG charts, and the per-node table, all from the
 //! report document. Produces strings and files; never computes a figure. Uses `profile`.
 
-pub mod changes;
 pub mod html;
 pub mod json;
 pub mod number;

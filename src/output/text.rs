@@ -1,5 +1,5 @@
 //! The reports as text for a 100-column terminal: intake, profile and sweep (comparisons are in
-//! [`crate::output::changes`]). Numbers go through [`crate::output::number`], as in the HTML
+//! [`crate::monitor::changes`]). Numbers go through [`crate::output::number`], as in the HTML
 //! page.
 
 use std::fmt::Write as _;
@@ -163,12 +163,22 @@ pub fn intake_text(g: &Graph, command: &str) -> String {
     row(
         &mut out,
         "cleaned",
-        format!(
-            "{} self-loops dropped · {} repeated lines and {} reciprocal pairs merged",
-            count(i.self_loops),
-            count(i.repeated_lines),
-            count(i.reciprocal_pairs)
-        ),
+        if i.directed {
+            format!(
+                "{} self-loops dropped · {} repeated lines merged · read as directed: {} pairs \
+                 listed both ways kept as mutual edges",
+                count(i.self_loops),
+                count(i.repeated_lines),
+                count(i.reciprocal_pairs)
+            )
+        } else {
+            format!(
+                "{} self-loops dropped · {} repeated lines and {} reciprocal pairs merged",
+                count(i.self_loops),
+                count(i.repeated_lines),
+                count(i.reciprocal_pairs)
+            )
+        },
     );
     if i.extra_column_lines > 0 {
         row(
@@ -216,7 +226,9 @@ fn graph_rows(out: &mut String, g: &Graph) {
         format!(
             "{} resident: {:.1} B per edge + {:.1} B per node (offsets and ids){}",
             bytes(g.store_bytes()),
-            g.csr.targets().len() as f64 * 4.0 / m,
+            (g.csr.targets().len() as f64 * 4.0
+                + g.directions.as_ref().map_or(0.0, |d| d.len() as f64))
+                / m,
             (g.csr.offsets().len() as f64 * 8.0 + g.ids.bytes() as f64) / n,
             if g.csr.is_mapped() {
                 ", mapped from the store file"
@@ -292,6 +304,9 @@ fn fig(f: &Figure, places: usize) -> String {
 pub fn profile_text(g: &Graph, p: &Profile, per_node: Option<&std::path::Path>) -> String {
     let mut out = intake_text(g, "profile");
     size_text(&mut out, p);
+    if let Some(d) = &p.directed {
+        directed_text(&mut out, d);
+    }
     if let Some(k) = &p.clustering {
         clustering_text(&mut out, k);
     }
@@ -356,6 +371,78 @@ fn size_text(out: &mut String, p: &Profile) {
             count(c.giant_edges),
             count(c.singletons)
         ),
+    );
+}
+
+/// The directed figures, and a reminder that the other sections are on the symmetrised graph.
+fn directed_text(out: &mut String, d: &crate::exact::directed::DirectedStats) {
+    section(out, "directed");
+    row(
+        out,
+        "edges",
+        format!(
+            "{} directed · {} mutual pairs · reciprocity {}",
+            count(d.directed_edges),
+            count(d.mutual_pairs),
+            d.reciprocity
+                .map_or("undefined".to_string(), |r| { decimal(r, 4) })
+        ),
+    );
+    for (label, s) in [("out-degree", &d.out_degree), ("in-degree", &d.in_degree)] {
+        row(
+            out,
+            label,
+            format!(
+                "min {} · mean {:.3} · max {} · <k²> {:.2} · {} nodes at 0",
+                count(s.min as u64),
+                s.mean,
+                count(s.max as u64),
+                s.second_moment,
+                count(s.zero)
+            ),
+        );
+    }
+    row(
+        out,
+        "weakly",
+        format!(
+            "{} components · largest {} nodes",
+            count(d.weak_components),
+            count(d.largest_weak)
+        ),
+    );
+    row(
+        out,
+        "strongly",
+        format!(
+            "{} components · largest {} nodes ({:.2}%) · {} single nodes",
+            count(d.strong_components),
+            count(d.largest_strong),
+            100.0 * d.largest_strong_fraction,
+            count(d.strong_singletons)
+        ),
+    );
+    match &d.clustering {
+        Some(c) => row(
+            out,
+            "clustering",
+            format!(
+                "Fagiolo total: average {} · ratio {} · {} directed triangles",
+                decimal(c.average, 4),
+                decimal(c.transitivity, 4),
+                count(c.directed_triangles)
+            ),
+        ),
+        None => row(
+            out,
+            "clustering",
+            "not computed: directed clustering runs when clustering is exact (--clustering exact)",
+        ),
+    }
+    row(
+        out,
+        "note",
+        "every other section is computed on the symmetrised graph (u–v when u → v or v → u)",
     );
 }
 
@@ -572,9 +659,10 @@ fn small_world_text(out: &mut String, sw: &crate::models::smallworld::SmallWorld
             "with",
             format!("{} against {}:", c.clustering, c.compared_with),
         );
-        row(out, "sigma", fig(&c.sigma, 3));
-        row(out, "omega", fig(&c.omega, 3));
-        row(out, "propensity", fig(&c.propensity, 3));
+        let shown = |f: &Option<Figure>| f.as_ref().map_or("undefined".to_string(), |f| fig(f, 3));
+        row(out, "sigma", shown(&c.sigma));
+        row(out, "omega", shown(&c.omega));
+        row(out, "propensity", shown(&c.propensity));
         for (i, v) in c.verdicts.iter().enumerate() {
             row(out, if i == 0 { "reading" } else { "" }, v);
         }

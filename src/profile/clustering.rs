@@ -24,16 +24,23 @@ pub(crate) struct ClusteringOutcome {
 
 /// The clustering group's one entry point: decides exact or sampled and returns the figures.
 /// `read_seconds` is what reading the input took: an exact count predicted to cost no more is
-/// worth its certainty even over the budget.
+/// worth its certainty even over the budget. With `directed`, exact clustering also brings
+/// Fagiolo's directed triangles, so the prediction counts them too.
 pub(crate) fn run(
     csr: &Csr,
     opts: &ProfileOptions,
     read_seconds: f64,
+    directed: bool,
     clock: &mut Clock,
 ) -> ClusteringOutcome {
     // A listing step's cost depends on the machine, the graph's size and its locality: measure.
     let probe = cost::listing_probe_seconds(csr, opts.threads);
-    let predicted = cost::triangle_seconds(csr, &opts.rates, opts.threads, probe);
+    let listing = cost::triangle_seconds(csr, &opts.rates, opts.threads, probe);
+    let predicted = if directed {
+        listing * (1.0 + cost::DIRECTED_TRIANGLES_PER_LISTING)
+    } else {
+        listing
+    };
     let allowance = opts.exact_seconds.max(read_seconds);
     let mut sampling = None;
     let exact = match opts.clustering {
@@ -75,30 +82,35 @@ pub(crate) fn run(
             100.0 * opts.level
         )
     };
+    let listing_words = if directed {
+        "triangle listing with directed triangles"
+    } else {
+        "triangle listing"
+    };
     let reason = match (opts.clustering, exact, sampling) {
         (Choice::Auto, true, Some(s)) => format!(
-            "exact triangle listing predicted {}, over the {} budget but no dearer than the {} \
+            "exact {listing_words} predicted {}, over the {} budget but no dearer than the {} \
              sampling to the margins would take",
             secs(predicted),
             secs(allowance),
             secs(s)
         ),
         (Choice::Auto, false, Some(s)) => format!(
-            "exact triangle listing predicted {}, over the {} budget; sampling to the margins \
+            "exact {listing_words} predicted {}, over the {} budget; sampling to the margins \
              predicted {}",
             secs(predicted),
             secs(allowance),
             secs(s)
         ),
         (Choice::Auto, true, None) if read_seconds > opts.exact_seconds => format!(
-            "exact triangle listing predicted {}, within the {} reading the input took",
+            "exact {listing_words} predicted {}, within the {} reading the input took",
             secs(predicted),
             secs(read_seconds)
         ),
         _ => why(
             opts.clustering,
             exact,
-            "triangle listing",
+            listing_words,
             predicted,
             opts.exact_seconds,
         ),

@@ -7,6 +7,7 @@ mod clustering;
 mod distances;
 pub mod plan;
 pub mod report;
+pub mod settings;
 mod small_world;
 
 use serde::{Deserialize, Serialize};
@@ -17,6 +18,7 @@ use crate::exact::clustering::ClusteringStats;
 use crate::exact::components::{self, ComponentStats};
 use crate::exact::cost::{REFERENCE_RATES, Rates};
 use crate::exact::degrees::{self, DegreeStats};
+use crate::exact::directed::DirectedStats;
 use crate::exact::distances::DistanceStats;
 use crate::figure::Figure;
 use crate::models::measure::Measure;
@@ -232,6 +234,11 @@ pub struct Profile {
     pub distances: Distances,
     /// sigma, omega and small-world propensity against random and lattice references.
     pub small_world: Option<SmallWorld>,
+    /// For a directed input (`--directed`): reciprocity, in- and out-degrees, weak and strong
+    /// components, Fagiolo's directed clustering. Every other figure is computed on the
+    /// symmetrised graph.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub directed: Option<DirectedStats>,
     /// Which method ran for each figure group, and why.
     pub plan: Vec<Decision>,
     /// Wall time of each stage.
@@ -286,9 +293,10 @@ pub fn profile(g: &Graph, opts: &ProfileOptions, progress: &dyn Progress) -> (Pr
     let component = comps.ranks();
     clock.done(StageName::Components);
 
-    let clustering = groups
-        .clustering
-        .then(|| clustering::run(csr, opts, g.intake.total_seconds(), &mut clock));
+    let clustering = groups.clustering.then(|| {
+        let directed = g.directions.is_some();
+        clustering::run(csr, opts, g.intake.total_seconds(), directed, &mut clock)
+    });
     if let Some(c) = &clustering {
         plan.push(c.decision.clone());
     }
@@ -307,6 +315,14 @@ pub fn profile(g: &Graph, opts: &ProfileOptions, progress: &dyn Progress) -> (Pr
             }),
         _ => None,
     };
+    let directed = g.directions.as_deref().map(|dir| {
+        clock.start(StageName::Directed);
+        // Directed triangles cost what triangle listing does: only when that ran exactly.
+        let exact = clustering.as_ref().is_some_and(|c| c.per_node.is_some());
+        let d = crate::exact::directed::directed_stats(csr, dir, &component_stats, exact);
+        clock.done(StageName::Directed);
+        d
+    });
     let (clustering, per_node) = match clustering {
         Some(c) => (Some(c.stats), c.per_node),
         None => (None, None),
@@ -329,6 +345,7 @@ pub fn profile(g: &Graph, opts: &ProfileOptions, progress: &dyn Progress) -> (Pr
         diameter,
         distances,
         small_world,
+        directed,
         plan,
         stages: clock.stages,
     };

@@ -5,9 +5,9 @@
 //! | bytes   | field |
 //! |---------|-------|
 //! | 0..8    | magic `\x89PLB\r\n\x1a\n` |
-//! | 8..12   | format version (1) |
+//! | 8..12   | format version (1; 2 when the graph is directed) |
 //! | 12..16  | header length (128) |
-//! | 16..20  | flags (0) |
+//! | 16..20  | flags (bit 0: directed; version 2 only) |
 //! | 20..24  | id kind: 0 range, 1 integer table, 2 text |
 //! | 24..32  | nodes n |
 //! | 32..40  | adjacency entries (2 x edges) |
@@ -15,12 +15,15 @@
 //! | 48..104 | byte positions of: offsets, targets, ids, id bytes, id bytes length, intake, intake length |
 //! | 104..112| file length |
 //! | 112..120| checksum |
-//! | 120..128| zero |
+//! | 120..128| byte position of the directions (version 2), else zero |
 //!
 //! Sections: offsets `[u64; n+1]`, targets `[u32; 2m]`, ids (`[u64; n]` for an integer table,
-//! `[u64; n+1]` offsets into the id bytes for text), id bytes, and the intake report as JSON.
-//! The checksum is xxh3-64 of the first 112 header bytes followed by the xxh3-64 digests of the
-//! body (everything after the header) cut into 16 MiB blocks, so it is computed in parallel.
+//! `[u64; n+1]` offsets into the id bytes for text), id bytes, the intake report as JSON, and
+//! for a directed graph the directions `[u8; 2m]` (each entry's flags: 1 out, 2 in, 3 both).
+//! The checksum is xxh3-64 of the first 112 header bytes (version 2: and bytes 120..128)
+//! followed by the xxh3-64 digests of the body (everything after the header) cut into 16 MiB
+//! blocks, so it is computed in parallel. Undirected graphs are written as version 1, byte for
+//! byte as before, so older builds still read them; they refuse version 2 by its number.
 
 use std::io::{Seek, SeekFrom, Write};
 use std::path::Path;
@@ -43,8 +46,11 @@ compile_error!(
 );
 
 pub(crate) const MAGIC: &[u8; 8] = crate::read::magic::STORE;
-/// Version of the store layout this build writes and the newest it reads.
-pub const VERSION: u32 = 1;
+/// The newest version of the store layout this build reads (and writes for directed graphs;
+/// undirected ones are written as version 1).
+pub const VERSION: u32 = 2;
+/// Header flag: the store keeps each entry's direction.
+const DIRECTED: u32 = 1;
 const HEADER: usize = 128;
 const ALIGN: u64 = 64;
 const BLOCK: usize = 16 << 20;
@@ -68,6 +74,7 @@ struct Header {
     intake_len: u64,
     file_len: u64,
     checksum: u64,
+    directions_at: u64,
 }
 
 impl Header {
@@ -91,6 +98,7 @@ impl Header {
             self.intake_len,
             self.file_len,
             self.checksum,
+            self.directions_at,
         ];
         for (i, w) in words64.iter().enumerate() {
             b[24 + 8 * i..32 + 8 * i].copy_from_slice(&w.to_le_bytes());
@@ -118,6 +126,7 @@ impl Header {
             intake_len: u64_at(96),
             file_len: u64_at(104),
             checksum: u64_at(112),
+            directions_at: u64_at(120),
         }
     }
 }
@@ -127,9 +136,13 @@ fn checksum(header: &[u8], body: &[u8]) -> u64 {
     seal(header, &digests)
 }
 
-/// The checksum from the header's first 112 bytes and the body's block digests, in order.
+/// The checksum from the header's first 112 bytes (version 2: and bytes 120..128, the
+/// directions' position) and the body's block digests, in order.
 fn seal(header: &[u8], digests: &[u64]) -> u64 {
     let mut all = header[..112].to_vec();
+    if u32::from_le_bytes(header[8..12].try_into().unwrap()) >= 2 {
+        all.extend_from_slice(&header[120..128]);
+    }
     all.extend(digests.iter().flat_map(|d| d.to_le_bytes()));
     xxh3_64(&all)
 }
@@ -219,7 +232,13 @@ impl StoreWriter {
     /// Write the offsets (whose last entry is the number of targets written), the ids and the
     /// intake, then the header with its checksum (read back from the file), and move the file
     /// into place. Returns the file size.
-    pub(crate) fn finish(self, offsets: &[u64], ids: &NodeIds, intake: &Intake) -> Result<u64> {
+    pub(crate) fn finish(
+        self,
+        offsets: &[u64],
+        ids: &NodeIds,
+        intake: &Intake,
+        directions: Option<&[u8]>,
+    ) -> Result<u64> {
         let StoreWriter { mut file, path, n } = self;
         let intake = serde_json::to_vec(intake).map_err(|e| Error::Output {
             path: path.clone(),
@@ -228,7 +247,8 @@ impl StoreWriter {
         debug_assert_eq!(offsets.len() as u64, n + 1);
         let entries = offsets.last().copied().unwrap_or(0);
         let mut h = Header {
-            version: VERSION,
+            version: if directions.is_some() { 2 } else { 1 },
+            flags: if directions.is_some() { DIRECTED } else { 0 },
             header_len: HEADER as u32,
             n,
             entries,
@@ -271,6 +291,10 @@ impl StoreWriter {
             h.intake_at = pad_to(w, &mut pos)?;
             h.intake_len = intake.len() as u64;
             put(w, &intake, &mut pos)?;
+            if let Some(d) = directions {
+                h.directions_at = pad_to(w, &mut pos)?;
+                put(w, d, &mut pos)?;
+            }
             h.file_len = pos;
             w.seek(SeekFrom::Start(0))?;
             w.write_all(&[0u8; HEADER])?;
@@ -313,7 +337,12 @@ pub fn write(graph: &Graph, path: &Path) -> Result<u64> {
     w.targets()
         .write_all(bytemuck::cast_slice(graph.csr.targets()))
         .map_err(|e| w.fail(e))?;
-    w.finish(graph.csr.offsets(), &graph.ids, &graph.intake)
+    w.finish(
+        graph.csr.offsets(),
+        &graph.ids,
+        &graph.intake,
+        graph.directions.as_deref(),
+    )
 }
 
 /// Open a store file in place.
@@ -361,7 +390,8 @@ fn open_with(path: &Path, map: Arc<memmap2::Mmap>, len: usize, verify: bool) -> 
             h.version
         )));
     }
-    if h.version == 0 || h.header_len as usize != HEADER || h.flags != 0 {
+    let flags_allowed = if h.version >= 2 { DIRECTED } else { 0 };
+    if h.version == 0 || h.header_len as usize != HEADER || h.flags & !flags_allowed != 0 {
         return Err(bad("the header is corrupt".into()));
     }
     if h.file_len != data.len() as u64 {
@@ -433,6 +463,17 @@ fn open_with(path: &Path, map: Arc<memmap2::Mmap>, len: usize, verify: bool) -> 
         }
         k => return Err(bad(format!("unknown id kind {k}"))),
     };
+    let directions = if h.flags & DIRECTED != 0 {
+        let (at, len) = section("directions", h.directions_at, h.entries, 1)?;
+        let d: Slab<u8> =
+            Slab::mapped(&map, at, len).ok_or_else(|| bad("bad directions".into()))?;
+        if verify && d.par_iter().any(|&f| f == 0 || f > 3) {
+            return Err(bad("a direction flag is not out, in or both".into()));
+        }
+        Some(d)
+    } else {
+        None
+    };
     let (at, len) = section("intake", h.intake_at, h.intake_len, 1)?;
     let mut intake: Intake = serde_json::from_slice(&data[at..at + len])
         .map_err(|e| bad(format!("the intake report is unreadable: {e}")))?;
@@ -445,6 +486,7 @@ fn open_with(path: &Path, map: Arc<memmap2::Mmap>, len: usize, verify: bool) -> 
         csr: Csr::from_parts(offsets, targets),
         ids,
         intake,
+        directions,
     })
 }
 

@@ -21,6 +21,7 @@ use std::sync::atomic::{AtomicU32, Ordering::Relaxed};
 
 use rayon::prelude::*;
 
+use crate::store::graph::{IN, OUT};
 use crate::store::pages::prefetch;
 
 /// Entries a block's span aims at, so writing into it works in the second-level cache.
@@ -60,6 +61,9 @@ pub struct Filled {
     pub targets: Vec<u32>,
     /// Distinct (first, second) pairs among the edge lines.
     pub directed_pairs: u64,
+    /// With `directed`: for each entry of `targets`, which way the edge runs
+    /// ([`OUT`] and/or [`IN`]).
+    pub directions: Option<Vec<u8>>,
 }
 
 /// A zeroed vector of atomics, using the allocator's zeroed pages.
@@ -209,7 +213,9 @@ impl Filler {
 
     /// Sort and merge every list, then close the gaps left by merged duplicates.
     /// Fails if the regions were not filled exactly (the input changed between passes).
-    pub fn finish(mut self) -> Result<Filled, String> {
+    /// With `directed`, each entry also gets its direction flags ([`OUT`], [`IN`]): the front
+    /// of a region holds the node's out-neighbours, the back its in-neighbours.
+    pub fn finish(mut self, directed: bool) -> Result<Filled, String> {
         self.write_staged();
         let Filler {
             mut offsets,
@@ -232,6 +238,11 @@ impl Filler {
         }
         let mut targets = plain(targets);
         let mut degree = vec![0u32; n];
+        let mut flags = if directed {
+            crate::store::pages::zeroed::<u8>(targets.len())
+        } else {
+            Vec::new()
+        };
 
         // Batches of whole nodes holding about `GRAIN` entries each, processed in parallel.
         const GRAIN: u64 = 1 << 16;
@@ -248,21 +259,29 @@ impl Filler {
         {
             let mut t_rest: &mut [u32] = &mut targets;
             let mut d_rest: &mut [u32] = &mut degree;
+            let mut f_rest: &mut [u8] = &mut flags;
             for w in cuts.windows(2) {
                 let (a, b) = (w[0], w[1]);
                 let span = (offsets[b] - offsets[a]) as usize;
                 let (t, tr) = std::mem::take(&mut t_rest).split_at_mut(span);
                 let (d, dr) = std::mem::take(&mut d_rest).split_at_mut(b - a);
+                let (fl, fr) = if directed {
+                    std::mem::take(&mut f_rest).split_at_mut(span)
+                } else {
+                    (&mut [][..], &mut [][..])
+                };
                 t_rest = tr;
                 d_rest = dr;
-                jobs.push((a, b, t, d));
+                f_rest = fr;
+                jobs.push((a, b, t, d, fl));
             }
         }
         let directed_pairs: u64 = jobs
             .into_par_iter()
-            .map(|(a, b, t, d)| {
+            .map(|(a, b, t, d, fl)| {
                 let base = offsets[a];
                 let mut scratch = Vec::new();
+                let mut marks = Vec::new();
                 let mut distinct_front = 0u64;
                 for u in a..b {
                     let lo = (offsets[u] - base) as usize;
@@ -271,7 +290,12 @@ impl Filler {
                     let (f, k) = region.split_at_mut(front[u] as usize);
                     f.sort_unstable();
                     k.sort_unstable();
-                    distinct_front += merge_distinct(f, k, &mut scratch);
+                    if directed {
+                        distinct_front += merge_flagged(f, k, &mut scratch, &mut marks);
+                        fl[lo..lo + marks.len()].copy_from_slice(&marks);
+                    } else {
+                        distinct_front += merge_distinct(f, k, &mut scratch);
+                    }
                     region[..scratch.len()].copy_from_slice(&scratch);
                     d[u - a] = scratch.len() as u32;
                 }
@@ -286,6 +310,9 @@ impl Filler {
             let len = degree[u] as usize;
             if from as u64 != acc {
                 targets.copy_within(from..from + len, acc as usize);
+                if directed {
+                    flags.copy_within(from..from + len, acc as usize);
+                }
             }
             offsets[u] = acc;
             acc += len as u64;
@@ -293,10 +320,16 @@ impl Filler {
         offsets[n] = acc;
         targets.truncate(acc as usize);
         targets.shrink_to_fit();
+        let directions = directed.then(|| {
+            flags.truncate(acc as usize);
+            flags.shrink_to_fit();
+            flags
+        });
         Ok(Filled {
             offsets,
             targets,
             directed_pairs,
+            directions,
         })
     }
 }
@@ -325,9 +358,56 @@ fn merge_distinct(a: &[u32], b: &[u32], out: &mut Vec<u32>) -> u64 {
     distinct_a
 }
 
+/// [`merge_distinct`] that also records, for each value of `out`, whether it came from `a` (the
+/// out-list: [`OUT`]), from `b` (the in-list: [`IN`]) or both, in `marks`.
+fn merge_flagged(a: &[u32], b: &[u32], out: &mut Vec<u32>, marks: &mut Vec<u8>) -> u64 {
+    out.clear();
+    marks.clear();
+    let (mut i, mut j) = (0, 0);
+    let mut distinct_a = 0;
+    while i < a.len() || j < b.len() {
+        let (x, flag) = if j == b.len() || (i < a.len() && a[i] <= b[j]) {
+            let x = a[i];
+            if i == 0 || a[i - 1] != x {
+                distinct_a += 1;
+            }
+            i += 1;
+            (x, OUT)
+        } else {
+            j += 1;
+            (b[j - 1], IN)
+        };
+        if out.last() == Some(&x) {
+            if let Some(m) = marks.last_mut() {
+                *m |= flag;
+            }
+        } else {
+            out.push(x);
+            marks.push(flag);
+        }
+    }
+    distinct_a
+}
+
 /// Build the simple undirected graph on nodes `0..n` from edge pairs (self-loops dropped,
 /// repeats merged), in parallel. Generators and tests use it; readers use [`Filler`] directly.
 pub fn csr_from_pairs(n: usize, pairs: &[(u32, u32)]) -> crate::store::csr::Csr {
+    filled_from_pairs(n, pairs, false).0
+}
+
+/// The symmetrised graph and each entry's direction flags from directed pairs u → v
+/// (self-loops dropped, repeats merged), for tests.
+#[cfg(test)]
+pub fn csr_from_directed(n: usize, pairs: &[(u32, u32)]) -> (crate::store::csr::Csr, Vec<u8>) {
+    let (g, d) = filled_from_pairs(n, pairs, true);
+    (g, d.unwrap_or_default())
+}
+
+fn filled_from_pairs(
+    n: usize,
+    pairs: &[(u32, u32)],
+    directed: bool,
+) -> (crate::store::csr::Csr, Option<Vec<u8>>) {
     let raw: Vec<u32> = {
         let counts: Vec<std::sync::atomic::AtomicU32> = atomic_zeroed(n);
         pairs.par_iter().for_each(|&(u, v)| {
@@ -344,9 +424,12 @@ pub fn csr_from_pairs(n: usize, pairs: &[(u32, u32)]) -> crate::store::csr::Csr 
         f.edges(&batch);
     });
     let done = f
-        .finish()
+        .finish(directed)
         .expect("the pairs are counted and filled from the same slice");
-    crate::store::csr::Csr::from_parts(done.offsets.into(), done.targets.into())
+    (
+        crate::store::csr::Csr::from_parts(done.offsets.into(), done.targets.into()),
+        done.directions,
+    )
 }
 
 #[cfg(test)]
@@ -365,7 +448,7 @@ mod tests {
         // Raw degrees promise two lines at node 0, but only one arrives (the file changed).
         let f = Filler::new(&[2, 1, 1]);
         f.edges(&[(0, 1)]);
-        assert!(matches!(f.finish(), Err(e) if e.contains("modified while being read")));
+        assert!(matches!(f.finish(false), Err(e) if e.contains("modified while being read")));
     }
 
     #[test]
@@ -373,7 +456,7 @@ mod tests {
         // Raw degrees promise one line at nodes 0 and 1, but two arrive.
         let f = Filler::new(&[1, 1]);
         f.edges(&[(0, 1), (1, 0)]);
-        assert!(matches!(f.finish(), Err(e) if e.contains("modified while being read")));
+        assert!(matches!(f.finish(false), Err(e) if e.contains("modified while being read")));
     }
 
     #[test]
@@ -401,13 +484,33 @@ mod tests {
             let f = Filler::new(&raw);
             assert!(f.staged.len() > 8, "several blocks");
             lines.par_chunks(3_000).for_each(|c| f.edges(c));
-            let done = f.finish().unwrap();
+            let done = f.finish(false).unwrap();
             let plain = crate::store::csr::Csr::from_edges(n as usize, &lines);
             assert_eq!(done.offsets, plain.offsets(), "seed {seed}");
             assert_eq!(done.targets, plain.targets(), "seed {seed}");
             let directed: BTreeSet<(u32, u32)> = lines.iter().copied().collect();
             assert_eq!(done.directed_pairs, directed.len() as u64);
         }
+    }
+
+    #[test]
+    fn directed_fill_flags_each_entry() {
+        // Lines: 0→1, 1→0 (mutual), 0→1 (repeat), 1→2, 3→1.
+        let lines = [(0, 1), (1, 0), (0, 1), (1, 2), (3, 1)];
+        let mut raw = vec![0u32; 4];
+        for &(u, v) in &lines {
+            raw[u as usize] += 1;
+            raw[v as usize] += 1;
+        }
+        let f = Filler::new(&raw);
+        f.edges(&lines);
+        let done = f.finish(true).unwrap();
+        assert_eq!(done.targets, vec![1, 0, 2, 3, 1, 1]);
+        let d = done.directions.unwrap();
+        // 0: {1: both}; 1: {0: both, 2: out, 3: in}; 2: {1: in}; 3: {1: out}.
+        assert_eq!(d, vec![OUT | IN, OUT | IN, OUT, IN, IN, OUT]);
+        assert_eq!(done.directed_pairs, 4);
+        assert!(Filler::new(&raw).finish(false).is_err());
     }
 
     #[test]
@@ -421,7 +524,7 @@ mod tests {
         }
         let f = Filler::new(&raw);
         f.edges(&lines);
-        let done = f.finish().unwrap();
+        let done = f.finish(false).unwrap();
         assert_eq!(done.offsets, vec![0, 1, 3, 4]);
         assert_eq!(done.targets, vec![1, 0, 2, 1]);
         // Distinct directed pairs: 0->1, 1->0, 1->2.

@@ -99,6 +99,11 @@ impl NodeIds {
     }
 }
 
+/// Direction flag of an entry `v` in `u`'s list: the input has the edge u → v.
+pub const OUT: u8 = 1;
+/// Direction flag of an entry `v` in `u`'s list: the input has the edge v → u.
+pub const IN: u8 = 2;
+
 /// A loaded graph: the adjacency, the original ids, and what reading found.
 #[derive(Debug)]
 pub struct Graph {
@@ -108,6 +113,9 @@ pub struct Graph {
     pub ids: NodeIds,
     /// What reading the input found.
     pub intake: Intake,
+    /// For a directed input: each entry of `csr.targets` flagged [`OUT`]
+    /// (u → v), [`IN`] (v → u) or both; `None` for undirected input.
+    pub directions: Option<Slab<u8>>,
 }
 
 /// Degree extremes and mean, the first figures a user checks after loading.
@@ -155,8 +163,43 @@ impl Graph {
         }
     }
 
-    /// Resident bytes of the store: adjacency plus id table.
+    /// For a directed graph, check that every entry's direction mirrors its twin's: u → v in
+    /// u's list is v ← u in v's (lists must be sorted and symmetric: [`Csr::verify`] first).
+    /// Returns the first node whose list disagrees.
+    pub fn verify_directions(&self) -> Result<(), String> {
+        use rayon::prelude::*;
+        let Some(dir) = self.directions.as_deref() else {
+            return Ok(());
+        };
+        let off = self.csr.offsets();
+        if dir.len() != self.csr.targets().len() {
+            return Err("the directions do not cover the adjacency".into());
+        }
+        let mirror = |f: u8| ((f & OUT) << 1) | ((f & IN) >> 1);
+        let bad = (0..self.node_count() as u32)
+            .into_par_iter()
+            .find_first(|&u| {
+                let lo = off[u as usize] as usize;
+                self.csr.neighbors(u).iter().enumerate().any(|(k, &v)| {
+                    let f = dir[lo + k];
+                    let twin = self
+                        .csr
+                        .neighbors(v)
+                        .binary_search(&u)
+                        .map(|j| dir[off[v as usize] as usize + j]);
+                    f == 0 || f > (OUT | IN) || twin != Ok(mirror(f))
+                })
+            });
+        match bad {
+            Some(u) => Err(format!(
+                "node index {u}: an edge's direction disagrees with its twin's"
+            )),
+            None => Ok(()),
+        }
+    }
+
+    /// Resident bytes of the store: adjacency, id table and, when directed, the directions.
     pub fn store_bytes(&self) -> u64 {
-        self.csr.bytes() + self.ids.bytes()
+        self.csr.bytes() + self.ids.bytes() + self.directions.as_ref().map_or(0, |d| d.len() as u64)
     }
 }

@@ -85,6 +85,9 @@ pub enum StageName {
     /// HyperLogLog sketches of the node and edge ids, kept in JSON reports for churn.
     #[serde(rename = "id sketch")]
     IdSketch,
+    /// Reciprocity, in- and out-degrees, strong components, directed clustering.
+    #[serde(rename = "directed figures")]
+    Directed,
 }
 
 impl StageName {
@@ -105,6 +108,7 @@ impl StageName {
             StageName::HyperBall => "HyperBall",
             StageName::ReferenceGraphs => "reference graphs",
             StageName::IdSketch => "id sketch",
+            StageName::Directed => "directed figures",
         }
     }
 
@@ -168,8 +172,12 @@ pub struct Intake {
     pub self_loops: u64,
     /// Edge lines repeating an earlier line in the same direction (merged).
     pub repeated_lines: u64,
-    /// Node pairs listed in both directions (merged into one edge).
+    /// Node pairs listed in both directions (merged into one undirected edge; with `directed`,
+    /// kept as a mutual pair).
     pub reciprocal_pairs: u64,
+    /// The input was read as directed (`--directed`): lines are edges u → v.
+    #[serde(default, skip_serializing_if = "std::ops::Not::not")]
+    pub directed: bool,
     /// Malformed lines skipped (with `--skip-malformed`).
     pub malformed_skipped: u64,
     /// The first few skipped lines, in file order.
@@ -242,6 +250,7 @@ impl Intake {
             self_loops: 0,
             repeated_lines: 0,
             reciprocal_pairs: 0,
+            directed: false,
             malformed_skipped: 0,
             malformed_examples: Vec::new(),
             nodes,

@@ -229,7 +229,7 @@ pub fn matrix_market(data: &[u8]) -> Option<RefGraph> {
 }
 
 /// The same view of a graph built by the fast path.
-pub fn view(g: &crate::Graph) -> RefGraph {
+pub fn view(g: &crate::store::graph::Graph) -> RefGraph {
     let mut r = RefGraph::default();
     for u in 0..g.node_count() as u32 {
         for &v in g.csr.neighbors(u) {

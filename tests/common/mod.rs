@@ -93,6 +93,7 @@ pub fn graph_of(csr: plumb::store::csr::Csr) -> Graph {
         csr,
         ids: plumb::store::graph::NodeIds::Range { first: 0, len: n },
         intake: plumb::store::intake::Intake::generated("test", n as u64, m, 0),
+        directions: None,
     }
 }
 
@@ -128,4 +129,22 @@ pub fn plumb(args: &[&str]) -> std::process::Output {
         .current_dir(env!("CARGO_MANIFEST_DIR"))
         .output()
         .unwrap()
+}
+
+/// Fail with every violation when `doc` does not validate against the committed profile
+/// schema (docs/profile.schema.json).
+pub fn assert_valid_profile(doc: &serde_json::Value) {
+    let schema: serde_json::Value = serde_json::from_str(
+        &std::fs::read_to_string(
+            std::path::Path::new(env!("CARGO_MANIFEST_DIR")).join("docs/profile.schema.json"),
+        )
+        .unwrap(),
+    )
+    .unwrap();
+    let v = jsonschema::validator_for(&schema).unwrap();
+    let errors: Vec<String> = v
+        .iter_errors(doc)
+        .map(|e| format!("{e} at {}", e.instance_path()))
+        .collect();
+    assert!(errors.is_empty(), "{errors:?}");
 }

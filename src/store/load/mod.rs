@@ -97,6 +97,9 @@ pub struct LoadOptions {
     /// The two id columns of a delimited export (names in its header, or 1-based positions);
     /// `None` reads the first two fields.
     pub columns: Option<ColumnChoice>,
+    /// The file is directed: a line `u v` is the edge u → v. The graph keeps each edge's
+    /// direction beside the symmetrised adjacency (built in memory only).
+    pub directed: bool,
 }
 
 impl Default for LoadOptions {
@@ -113,6 +116,7 @@ impl Default for LoadOptions {
             scratch: None,
             scratch_keep_free: 1 << 30,
             columns: None,
+            directed: false,
         }
     }
 }
@@ -169,7 +173,21 @@ fn load_to(
     progress: &dyn Progress,
 ) -> Result<Graph> {
     let compression = match source::sniff(input.bytes()) {
-        Sniffed::Store => return crate::store::file::open_input(input),
+        Sniffed::Store => {
+            let path = input.path.clone();
+            let g = crate::store::file::open_input(input)?;
+            // A store keeps the directions it was packed with; it cannot invent missing ones.
+            if opts.directed && g.directions.is_none() {
+                return Err(Error::Parameters {
+                    problem: format!(
+                        "{}: this store was packed from an undirected read and keeps no \
+                         directions; pack the edge file again with --directed",
+                        path.display()
+                    ),
+                });
+            }
+            return Ok(g);
+        }
         Sniffed::Unsupported(format) => {
             return Err(Error::Unsupported {
                 path: input.path.clone(),
@@ -325,6 +343,16 @@ impl<'a> Loader<'a> {
                 },
                 problem: f.problem,
             })?;
+            if opts.directed && h.symmetry != mtx::Symmetry::General {
+                return Err(Error::Parameters {
+                    problem: format!(
+                        "{}: the Matrix Market banner says {:?}, so each entry stands for both \
+                         directions; --directed needs a general matrix",
+                        path.display(),
+                        h.symmetry
+                    ),
+                });
+            }
             if h.rows > opts.max_nodes.min(ids::MAX_NODES) {
                 return Err(Error::TooManyNodes {
                     path: path.clone(),
@@ -424,10 +452,12 @@ impl<'a> Loader<'a> {
         scanned: Scanned,
     ) -> Result<Graph> {
         self.progress.stage("sorting lists", None, Unit::Items);
-        let filled = filler.finish().map_err(|problem| Error::Output {
-            path: self.input.path.clone(),
-            problem,
-        })?;
+        let filled = filler
+            .finish(self.opts.directed)
+            .map_err(|problem| Error::Output {
+                path: self.input.path.clone(),
+                problem,
+            })?;
         self.stage_done(StageName::SortAndMerge);
         let intake = self.intake(
             &filled.offsets,
@@ -437,7 +467,12 @@ impl<'a> Loader<'a> {
             None,
         )?;
         let csr = crate::store::csr::Csr::from_parts(filled.offsets.into(), filled.targets.into());
-        Ok(Graph { csr, ids, intake })
+        Ok(Graph {
+            csr,
+            ids,
+            intake,
+            directions: filled.directions.map(Into::into),
+        })
     }
 
     /// What reading found, from the finished offsets and the merge's count of distinct
@@ -524,6 +559,7 @@ impl<'a> Loader<'a> {
             self_loops: total.loops,
             repeated_lines: loopless - directed_pairs,
             reciprocal_pairs: directed_pairs - m,
+            directed: self.opts.directed,
             malformed_skipped: total.malformed,
             malformed_examples: examples,
             nodes: n,

@@ -92,6 +92,28 @@ impl Loader<'_> {
             .saturating_add(crate::store::fill::staging_bytes(entries))
             .saturating_add(per_node);
         let what = || format!("building the adjacency of {n} nodes and {entries} edge entries");
+        if self.opts.directed {
+            // Direction flags ride along in memory only; the sorted runs have no room for them.
+            if matches!(self.opts.build, BuildChoice::Disk) {
+                return Err(Error::Parameters {
+                    problem: format!(
+                        "{}: a directed graph is built in memory only (the build on disk keeps \
+                         no directions yet); drop --build disk",
+                        self.input.path.display()
+                    ),
+                });
+            }
+            check_budget(
+                &self.input.path,
+                self.opts,
+                format!(
+                    "{}, with a direction byte each (directed graphs build in memory only)",
+                    what()
+                ),
+                in_memory.saturating_add(entries),
+            )?;
+            return Ok(Choice::Memory);
+        }
         let needs = self.disk_needs(n, entries, runs_written);
         match self.opts.build {
             BuildChoice::Memory => {
@@ -189,6 +211,9 @@ impl Loader<'_> {
         };
         // About 16 bytes of text per edge line, 8 bytes of adjacency under construction.
         let adjacency = text / 2;
+        if self.opts.directed {
+            return None;
+        }
         match self.opts.build {
             BuildChoice::Memory => return None,
             BuildChoice::Auto if adjacency < DISK_FROM => return None,
@@ -346,7 +371,7 @@ impl Loader<'_> {
             scanned,
             Some(on_disk),
         )?;
-        w.finish(&merged.offsets, &ids, &intake)?;
+        w.finish(&merged.offsets, &ids, &intake, None)?;
         drop(merged);
         drop(ids);
         let mut g = file::open_fresh(&store_path)?;
