@@ -245,6 +245,15 @@ pub enum Error {
         problem: String,
     },
 
+    /// Another process of a distributed run failed; its message as it gave it, and its class.
+    #[error("{problem}")]
+    Remote {
+        /// What the other process reported, naming the file and line where it has them.
+        problem: String,
+        /// The class of the other process's failure.
+        class: ErrorClass,
+    },
+
     /// An option or parameter outside what it allows (usage error).
     #[error("{problem}")]
     Parameters {
@@ -260,6 +269,7 @@ impl Error {
             Error::Io { .. } => ErrorClass::Io,
             Error::OverBudget { .. } | Error::ScratchFull { .. } => ErrorClass::Budget,
             Error::Parameters { .. } => ErrorClass::Usage,
+            Error::Remote { class, .. } => *class,
             _ => ErrorClass::BadInput,
         }
     }
@@ -294,7 +304,7 @@ impl Error {
             | Error::Store { path, .. }
             | Error::Output { path, .. }
             | Error::Report { path, .. } => Some(path),
-            Error::Parameters { .. } => None,
+            Error::Parameters { .. } | Error::Remote { .. } => None,
         }
     }
 

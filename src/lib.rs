@@ -14,6 +14,7 @@
 //! | profile | [`profile`] | the planner, one unit per figure group, the report document |
 //! | output | [`output`] | text, HTML and SVG, the per-node table, the number formatter |
 //! | monitor | [`monitor`] | history directories, comparisons, `track`, trend pages |
+//! | spread | [`spread`] | the profile computed by several processes on timely dataflow |
 //!
 //! Start with [`store::load::load`], which reads an edge file (plain, zstd or gzip; edge list or
 //! Matrix Market) or a store file into a [`Graph`], then [`profile::profile`].
@@ -32,6 +33,7 @@ pub mod output;
 pub mod profile;
 pub mod progress;
 pub mod read;
+pub mod spread;
 pub mod store;
 
 pub use error::{Error, Result};

@@ -93,6 +93,44 @@ pub(crate) enum Command {
         #[command(flatten)]
         check: CheckArgs,
     },
+    /// Profile with several processes, on this machine or several, through timely dataflow:
+    /// each reads its share of the part files; exact figures only (no distances yet).
+    Spread {
+        #[command(flatten)]
+        input: InputArgs,
+        /// Write the report as JSON to FILE (process 0 only; written once the whole run has
+        /// finished, never in part).
+        #[arg(long, value_name = "FILE")]
+        json: Option<PathBuf>,
+        /// Start P processes on this machine, joined over loopback, and profile with all of them.
+        #[arg(long, value_name = "P", conflicts_with_all = ["peers", "rank"])]
+        local: Option<usize>,
+        /// The run's processes: a file with one host:port a line, in process order (the
+        /// engine's own host list, passed through). Every process gets the same file.
+        #[arg(long, value_name = "FILE", requires = "rank")]
+        peers: Option<PathBuf>,
+        /// This process's line in the peers file, from 0; process 0 writes the report.
+        #[arg(long, value_name = "I", requires = "peers")]
+        rank: Option<usize>,
+        /// Worker threads in each process.
+        #[arg(long, value_name = "W", default_value_t = 1)]
+        workers: usize,
+        /// Leave out triangles and clustering.
+        #[arg(long)]
+        no_clustering: bool,
+        /// BFS sources sampled in the giant component for the distance figures; 0 leaves
+        /// distances out.
+        #[arg(long, value_name = "K", default_value_t = 256)]
+        sources: usize,
+        /// Confidence level of the intervals (0.95 or 95%).
+        #[arg(long, value_name = "LEVEL", default_value_t = 0.95,
+              value_parser = plumb::profile::settings::parse_fraction)]
+        level: f64,
+        /// Seed of the source sample: the same seed and input give the same figures on any
+        /// number of processes.
+        #[arg(long, value_name = "N", default_value_t = 1)]
+        seed: u64,
+    },
     /// Print the JSON Schema of the profile report.
     Schema,
     /// Read an edge file and show what was read: sizes, cleaning counts, degrees, timings.

@@ -3,6 +3,7 @@
 
 mod args;
 mod bars;
+mod spread;
 
 use std::path::{Path, PathBuf};
 use std::process::ExitCode;
@@ -18,18 +19,22 @@ use plumb::store::load::load;
 /// Exit codes (documented in the README).
 const EXIT_USAGE: u8 = 2;
 const EXIT_BAD_INPUT: u8 = 3;
-const EXIT_IO: u8 = 4;
+pub(crate) const EXIT_IO: u8 = 4;
 const EXIT_BUDGET: u8 = 5;
 /// A change alert fired (track, compare).
 const EXIT_ALERT: u8 = 6;
 
 pub(crate) fn exit_code(e: &Error) -> ExitCode {
-    ExitCode::from(match e.class() {
+    ExitCode::from(exit_number(e))
+}
+
+fn exit_number(e: &Error) -> u8 {
+    match e.class() {
         ErrorClass::BadInput => EXIT_BAD_INPUT,
         ErrorClass::Io => EXIT_IO,
         ErrorClass::Budget => EXIT_BUDGET,
         ErrorClass::Usage => EXIT_USAGE,
-    })
+    }
 }
 
 fn usage(problem: impl Into<String>) -> Error {
@@ -125,6 +130,32 @@ pub(crate) fn run(args: Args) -> Result<ExitCode, Error> {
             out,
             check,
         } => trend(&history, &out, &check)?,
+        Command::Spread {
+            input,
+            json,
+            local,
+            peers,
+            rank,
+            workers,
+            no_clustering,
+            sources,
+            level,
+            seed,
+        } => {
+            let how = spread::How {
+                local,
+                peers,
+                rank,
+                workers,
+                want: plumb::spread::SpreadOptions {
+                    clustering: !no_clustering,
+                    sources,
+                    level,
+                    seed,
+                },
+            };
+            spread::run(&input, json.as_deref(), &how)?
+        }
         Command::Intake { input, json } => {
             refuse_overwrite(json.as_deref().unwrap_or(Path::new("-")), &input.input)?;
             let g = load(&input.input, &input.options(), &bars)?;

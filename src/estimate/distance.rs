@@ -208,7 +208,7 @@ pub fn sources_for(pilot: &Figure, relative: f64, level: f64, population: u64) -
     k.ceil() as usize
 }
 
-fn summarise(nodes: u64, per: &PerSource, level: f64, seed: u64) -> SampledDistances {
+pub(crate) fn summarise(nodes: u64, per: &PerSource, level: f64, seed: u64) -> SampledDistances {
     const NAME: &str =
         "BFS from uniformly sampled sources (Eppstein & Wang 2004), normal interval (FPC)";
     let k = per.len();

@@ -7,7 +7,6 @@ use serde::{Deserialize, Serialize};
 
 use crate::exact::triangles::Triangles;
 use crate::figure::Figure;
-use crate::numeric::det_sum;
 use crate::store::csr::Csr;
 
 /// Mean local clustering of the nodes whose degree falls in `[low, high]`.
@@ -77,49 +76,105 @@ pub fn local_from(g: &Csr, per_node: &[u64]) -> Vec<f64> {
 
 /// Summary figures from triangle counts and the local clustering `c` (from [`local`]).
 pub fn stats(g: &Csr, t: &Triangles, c: &[f64]) -> ClusteringStats {
-    let n = g.node_count();
-    let wedges = wedge_total(g);
-    let deg2 = (0..n as u32).filter(|&v| g.degree(v) >= 2).count() as u64;
-    let sum_c = det_sum(n, |v| c[v]);
-    const ALG: &str = "forward triangle listing (Schank & Wagner 2005)";
-    let transitivity = if wedges == 0 {
-        0.0
-    } else {
-        3.0 * t.total as f64 / wedges as f64
-    };
-    let mut by_degree = Vec::new();
-    let max = (0..n as u32).map(|v| g.degree(v)).max().unwrap_or(0);
-    let mut low = 2u32;
-    while low <= max {
-        let high = (low.saturating_mul(2) - 1).min(max);
-        let members: Vec<usize> = (0..n)
-            .filter(|&v| (low..=high).contains(&g.degree(v as u32)))
-            .collect();
-        if !members.is_empty() {
-            let s = det_sum(members.len(), |i| c[members[i]]);
-            by_degree.push(DegreeClustering {
-                low,
-                high,
-                nodes: members.len() as u64,
-                mean: Figure::exact_over(s / members.len() as f64, ALG, members.len() as u64),
-            });
+    use rayon::prelude::*;
+    // Per-task sums merge exactly, so the split does not show in the figures.
+    let parts = (0..g.node_count())
+        .into_par_iter()
+        .with_min_len(1 << 14)
+        .fold(ClusteringParts::default, |mut p, v| {
+            p.add(g.degree(v as u32), c[v]);
+            p
+        })
+        .reduce(ClusteringParts::default, |mut a, b| {
+            a.merge(&b);
+            a
+        });
+    parts.finish(t.total)
+}
+
+/// The mergeable sums behind [`ClusteringStats`]: wedges, nodes of degree 2 and up, and exact
+/// sums of local clustering overall and per C(k) bin. Partial sums over any split of the nodes
+/// merge to the same figures, to the last digit (the float sums are exact until read).
+#[derive(Debug, Clone, Default, PartialEq, Serialize, Deserialize)]
+pub(crate) struct ClusteringParts {
+    nodes: u64,
+    wedges: u128,
+    deg2: u64,
+    max_degree: u32,
+    sum: crate::numeric::ExactSum,
+    /// Bin k holds degrees [2^k, 2^(k+1) - 1], from k = 1.
+    bins: Vec<(u64, crate::numeric::ExactSum)>,
+}
+
+impl ClusteringParts {
+    /// Count a node of degree `d` and local clustering `c`.
+    pub(crate) fn add(&mut self, d: u32, c: f64) {
+        self.nodes += 1;
+        self.wedges += wedges_at(d);
+        self.max_degree = self.max_degree.max(d);
+        self.sum.add(c);
+        if d >= 2 {
+            self.deg2 += 1;
+            let k = (31 - d.leading_zeros()) as usize;
+            if self.bins.len() <= k {
+                self.bins.resize(k + 1, Default::default());
+            }
+            self.bins[k].0 += 1;
+            self.bins[k].1.add(c);
         }
-        low = low.saturating_mul(2);
     }
-    ClusteringStats {
-        triangles: Figure::exact(t.total as f64, ALG),
-        wedges,
-        transitivity: Figure::exact(transitivity, ALG),
-        average_zeros: Figure::exact_over(
-            if n == 0 { 0.0 } else { sum_c / n as f64 },
-            ALG,
-            n as u64,
-        ),
-        average_deg2: Figure::exact_over(
-            if deg2 == 0 { 0.0 } else { sum_c / deg2 as f64 },
-            ALG,
-            deg2,
-        ),
-        by_degree,
+
+    pub(crate) fn merge(&mut self, o: &ClusteringParts) {
+        self.nodes += o.nodes;
+        self.wedges += o.wedges;
+        self.deg2 += o.deg2;
+        self.max_degree = self.max_degree.max(o.max_degree);
+        self.sum.merge(&o.sum);
+        if self.bins.len() < o.bins.len() {
+            self.bins.resize(o.bins.len(), Default::default());
+        }
+        for (a, b) in self.bins.iter_mut().zip(&o.bins) {
+            a.0 += b.0;
+            a.1.merge(&b.1);
+        }
+    }
+
+    /// The figures, with `triangles` the graph's triangle count.
+    pub(crate) fn finish(&self, triangles: u64) -> ClusteringStats {
+        const ALG: &str = "forward triangle listing (Schank & Wagner 2005)";
+        let (n, wedges, deg2) = (self.nodes, self.wedges, self.deg2);
+        let sum_c = self.sum.value();
+        let transitivity = if wedges == 0 {
+            0.0
+        } else {
+            3.0 * triangles as f64 / wedges as f64
+        };
+        let by_degree = self
+            .bins
+            .iter()
+            .enumerate()
+            .filter(|(_, b)| b.0 > 0)
+            .map(|(k, (nodes, sum))| {
+                let low = 1u32 << k;
+                DegreeClustering {
+                    low,
+                    high: (low.saturating_mul(2) - 1).min(self.max_degree),
+                    nodes: *nodes,
+                    mean: Figure::exact_over(sum.value() / *nodes as f64, ALG, *nodes),
+                }
+            })
+            .collect();
+        ClusteringStats {
+            triangles: Figure::exact(triangles as f64, ALG),
+            wedges,
+            transitivity: Figure::exact(transitivity, ALG),
+            average_zeros: Figure::exact_over(if n == 0 { 0.0 } else { sum_c / n as f64 }, ALG, n),
+            average_deg2: Figure::exact_over(
+                if deg2 == 0 { 0.0 } else { sum_c / deg2 as f64 },
+                ALG,
+                deg2,
+            ),
+            by_degree,
+        }
     }
 }

@@ -98,6 +98,19 @@ pub fn degree_stats(g: &Csr) -> DegreeStats {
     for &d in &large {
         histogram[d as usize] += 1;
     }
+    let sums = end_sums(g, &degrees);
+    stats_from(n as u64, m, histogram, sums)
+}
+
+/// The statistics from the degree histogram (`histogram[d]` nodes of degree d, its last entry
+/// non-zero when there are edges) and the end sums behind assortativity; shared by the
+/// single-machine and the distributed profile, so both round the same integers the same way.
+pub(crate) fn stats_from(n: u64, m: u64, histogram: Vec<u64>, sums: EndSums) -> DegreeStats {
+    let mut histogram = histogram;
+    if histogram.is_empty() {
+        histogram.push(0);
+    }
+    let max = (histogram.len() - 1) as u32;
     let min = histogram.iter().position(|&c| c > 0).unwrap_or(0) as u32;
     let isolated = histogram[0];
     let sum_sq: u128 = histogram
@@ -120,9 +133,8 @@ pub fn degree_stats(g: &Csr) -> DegreeStats {
         log_bins.push(DegreeBin { low, high, nodes });
         low = low.saturating_mul(2);
     }
-    let sums = end_sums(g, &degrees);
     DegreeStats {
-        nodes: n as u64,
+        nodes: n,
         edges: m,
         density: if n > 1 {
             2.0 * m as f64 / (n as f64 * (n as f64 - 1.0))
@@ -144,7 +156,7 @@ pub fn degree_stats(g: &Csr) -> DegreeStats {
         },
         histogram,
         log_bins,
-        assortativity: assortativity(sums, g.targets().len()),
+        assortativity: assortativity(sums, 2 * m as usize),
     }
 }
 
@@ -181,7 +193,7 @@ impl<'g> Degrees<'g> {
 }
 
 /// Sums over directed edge ends (u -> v): of d_u d_v, of d_u and of d_u^2.
-type EndSums = (u128, u128, u128);
+pub(crate) type EndSums = (u128, u128, u128);
 
 /// The sums behind assortativity in one pass over the adjacency, each task a run of nodes.
 /// Lists are sorted and symmetric without self-loops, so each edge is read once, from its

@@ -53,10 +53,20 @@ pub(crate) fn row(out: &mut String, label: &str, text: impl AsRef<str>) {
 
 /// What was read, headed by the command that read it (`intake`, `pack`, `profile`).
 pub fn intake_text(g: &Graph, command: &str) -> String {
-    let i = &g.intake;
+    let mut out = read_rows(&g.intake, command);
+    graph_rows(&mut out, g);
+    out
+}
+
+/// What reading found, from the intake alone (no graph at hand, as in a distributed run).
+fn read_rows(i: &crate::store::intake::Intake, command: &str) -> String {
     let mut out = String::new();
     let _ = writeln!(out, "plumb {command} · {}", i.source);
     let codec = match i.compression {
+        _ if i.parts.is_some() => format!(
+            "{} part files read in parallel",
+            count(i.parts.unwrap_or(0))
+        ),
         Compression::None => "plain text".to_string(),
         Compression::Zstd => match i.frames {
             Some(f) if f > 1 => format!("zstd ({f} frames, decoded in parallel)"),
@@ -74,7 +84,9 @@ pub fn intake_text(g: &Graph, command: &str) -> String {
         IdKind::Integer => "integer ids",
         IdKind::Text => "text ids",
     };
-    let size = if matches!(i.compression, Compression::None | Compression::Parquet) {
+    let size = if i.text_bytes == i.input_bytes
+        || matches!(i.compression, Compression::None | Compression::Parquet) && i.parts.is_none()
+    {
         bytes(i.input_bytes)
     } else {
         format!("{} → {} of text", bytes(i.input_bytes), bytes(i.text_bytes))
@@ -108,6 +120,10 @@ pub fn intake_text(g: &Graph, command: &str) -> String {
         "line"
     };
     if let Some(f) = &i.first_text_id {
+        let line_word = match &f.part {
+            Some(part) => format!("{part}, {line_word}"),
+            None => line_word.to_string(),
+        };
         let why = if f.integer_too_large {
             format!(
                 "{:?} on {} {} is an integer beyond 2^64-1, so every id is read as text \
@@ -133,8 +149,14 @@ pub fn intake_text(g: &Graph, command: &str) -> String {
         count(i.comment_lines),
         count(i.blank_lines)
     );
-    if let Some(h) = &i.header_line {
-        let _ = write!(lines, " + 1 header {h:?}");
+    match (&i.header_line, i.header_lines) {
+        (Some(h), Some(n)) if n > 1 => {
+            let _ = write!(lines, " + {} headers {h:?}", count(n));
+        }
+        (Some(h), _) => {
+            let _ = write!(lines, " + 1 header {h:?}");
+        }
+        _ => {}
     }
     if i.malformed_skipped > 0 {
         let _ = write!(
@@ -152,7 +174,8 @@ pub fn intake_text(g: &Graph, command: &str) -> String {
             &mut out,
             "",
             format!(
-                "  skipped line {} (byte {}): {} — {:?}",
+                "  skipped {}line {} (byte {}): {} — {:?}",
+                b.part.as_ref().map_or(String::new(), |p| format!("{p}, ")),
                 count(b.line),
                 count(b.byte),
                 b.problem,
@@ -190,7 +213,6 @@ pub fn intake_text(g: &Graph, command: &str) -> String {
             ),
         );
     }
-    graph_rows(&mut out, g);
     out
 }
 
@@ -315,6 +337,56 @@ pub fn profile_text(g: &Graph, p: &Profile, per_node: Option<&std::path::Path>) 
         small_world_text(&mut out, sw);
     }
     method_text(&mut out, p, per_node);
+    out
+}
+
+/// A distributed profile as text: what was read, how the run went, then the figure groups.
+pub fn spread_text(p: &Profile, run: &crate::profile::report::SpreadRun) -> String {
+    let mut out = read_rows(&p.intake, "spread");
+    row(
+        &mut out,
+        "graph",
+        format!(
+            "{} nodes · {} edges · {} isolated nodes",
+            count(p.intake.nodes),
+            count(p.intake.edges),
+            count(p.intake.isolated_nodes)
+        ),
+    );
+    row(
+        &mut out,
+        "run",
+        format!(
+            "{} processes · {} workers · {} items exchanged · components in {} label rounds{}",
+            count(run.processes),
+            count(run.workers),
+            count(run.exchanged_items),
+            count(run.label_rounds),
+            if run.wedge_rounds > 0 {
+                format!(" · triangles in {} wedge rounds", count(run.wedge_rounds))
+            } else {
+                String::new()
+            }
+        ),
+    );
+    size_text(&mut out, p);
+    if let Some(k) = &p.clustering {
+        clustering_text(&mut out, k);
+    }
+    distance_text(&mut out, p);
+    section(&mut out, "not distributed yet");
+    row(
+        &mut out,
+        "left out",
+        "the exact diameter, HyperBall and the small-world comparison: profile a store of the \
+         graph on one machine for them",
+    );
+    let times: Vec<String> = p
+        .stages
+        .iter()
+        .map(|s| format!("{} {:.2} s", s.name.label(), s.seconds))
+        .collect();
+    row(&mut out, "time", times.join(" · "));
     out
 }
 

@@ -81,6 +81,29 @@ pub struct Report {
     )]
     #[schemars(with = "Option<crate::estimate::sketch::SketchBlock>")]
     pub ids: Option<crate::estimate::sketch::IdSketch>,
+    /// How a distributed profile ran (`plumb spread`); absent for a single-machine profile.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub spread: Option<SpreadRun>,
+}
+
+/// How a distributed run went: its size and what crossed between workers.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize, schemars::JsonSchema)]
+pub struct SpreadRun {
+    /// Processes in the run.
+    pub processes: u64,
+    /// Workers over all processes.
+    pub workers: u64,
+    /// Part files read (one for a single file).
+    pub parts: u64,
+    /// Items (edges, adjacency entries, labels, wedges, …) handed by workers to other workers.
+    pub exchanged_items: u64,
+    /// Rounds of label passing the components took.
+    pub label_rounds: u64,
+    /// Rounds of wedge checking the triangle count took.
+    pub wedge_rounds: u64,
+    /// Frontier rounds of the sampled-source searches (one per level of each batch).
+    #[serde(default)]
+    pub bfs_rounds: u64,
 }
 
 /// The id sketch when it is in a layout this plumb reads, else none.
@@ -94,21 +117,26 @@ fn lenient_sketch<'de, D: serde::Deserializer<'de>>(
 /// Size and XXH3-64 of a file, read in blocks. Not through a memory map: a map's pages count
 /// in the resident set, and when the input is the store file being profiled (itself mapped) a
 /// second map doubled it (a 16.8 GiB peak at a billion edges).
+/// A folder or pattern of part files is summed as its parts' bytes one after another, in the
+/// order they are read (by path), with their total size.
 pub fn checksum(path: &Path) -> Result<(u64, String)> {
     use std::io::Read;
-    let mut file = std::fs::File::open(path).map_err(|e| Error::io(path, "open", e))?;
+    let files = crate::read::source::list_parts(path)?.unwrap_or_else(|| vec![path.to_path_buf()]);
     let mut hasher = xxhash_rust::xxh3::Xxh3::new();
     let mut buf = vec![0u8; 4 << 20];
     let mut len = 0u64;
-    loop {
-        let got = match file.read(&mut buf) {
-            Ok(0) => break,
-            Ok(k) => k,
-            Err(e) if e.kind() == std::io::ErrorKind::Interrupted => continue,
-            Err(e) => return Err(Error::io(path, "read", e)),
-        };
-        hasher.update(&buf[..got]);
-        len += got as u64;
+    for path in &files {
+        let mut file = std::fs::File::open(path).map_err(|e| Error::io(path, "open", e))?;
+        loop {
+            let got = match file.read(&mut buf) {
+                Ok(0) => break,
+                Ok(k) => k,
+                Err(e) if e.kind() == std::io::ErrorKind::Interrupted => continue,
+                Err(e) => return Err(Error::io(path, "read", e)),
+            };
+            hasher.update(&buf[..got]);
+            len += got as u64;
+        }
     }
     Ok((len, format!("{:016x}", hasher.digest())))
 }
@@ -152,6 +180,7 @@ impl Report {
             },
             profile,
             ids: None,
+            spread: None,
         }
     }
 

@@ -158,6 +158,156 @@ pub fn run<W: Send>(
     }
 }
 
+/// Bits of a piece index below a part's number: the index of piece `k` of part `p` among the
+/// parts of a multi-part input is `p << PART_SHIFT | k` (see [`run_parts`]).
+pub(crate) const PART_SHIFT: u32 = 40;
+
+/// The part a piece index belongs to.
+pub(crate) fn part_of(index: usize) -> usize {
+    index >> PART_SHIFT
+}
+
+/// Run `work` over every piece of several parts read as one input. Plain parts are split at
+/// newlines and their pieces shared among the workers; a compressed part is decoded whole by
+/// the worker that takes it (so several parts decode at once). Piece indices carry their part
+/// (`part << PART_SHIFT | k`) and are handed out in part order, so a stop keeps the same promise
+/// as [`run`]: every piece before the stopping one is processed. A stream fault comes with the
+/// number of its part.
+pub fn run_parts<W: Send>(
+    parts: &[Source<'_>],
+    threads: usize,
+    progress: &dyn Progress,
+    init: impl Fn() -> W + Sync,
+    work: impl Fn(&mut W, usize, &[u8], u64) -> bool + Sync,
+) -> Result<(Vec<W>, DecodeInfo), (usize, StreamFault)> {
+    let threads = threads.max(1);
+    let stop_at = AtomicUsize::new(usize::MAX);
+    let stop = |i: usize| {
+        stop_at.fetch_min(i, Ordering::Relaxed);
+    };
+    let stopped_before = |i: usize| stop_at.load(Ordering::Relaxed) < i;
+    // (part, byte range of a plain piece, or None for a whole compressed part)
+    let mut items: Vec<(usize, Option<(usize, usize)>)> = Vec::new();
+    for (p, src) in parts.iter().enumerate() {
+        match src.compression {
+            Compression::None => items.extend(
+                split_at_newlines(src.data, src.piece)
+                    .into_iter()
+                    .map(|r| (p, Some(r))),
+            ),
+            _ => items.push((p, None)),
+        }
+    }
+    // Each piece index belongs to exactly one item, so counters per item never collide.
+    let firsts: Vec<usize> = {
+        let mut k = vec![0usize; parts.len()];
+        items
+            .iter()
+            .map(|&(p, _)| {
+                k[p] += 1;
+                k[p] - 1
+            })
+            .collect()
+    };
+    let next = AtomicUsize::new(0);
+    let faults: Mutex<Vec<(usize, StreamFault)>> = Mutex::new(Vec::new());
+    let frames = AtomicUsize::new(0);
+    let text = std::sync::atomic::AtomicU64::new(0);
+    let worker = || {
+        let mut st = init();
+        loop {
+            let i = next.fetch_add(1, Ordering::Relaxed);
+            let Some(&(p, range)) = items.get(i) else {
+                break;
+            };
+            let src = &parts[p];
+            let base = p << PART_SHIFT;
+            match range {
+                Some((a, b)) => {
+                    let index = base | firsts[i];
+                    if stopped_before(index) {
+                        break;
+                    }
+                    if !work(&mut st, index, &src.data[a..b], a as u64) {
+                        stop(index);
+                    }
+                    release(src.map, a, b);
+                    text.fetch_add((b - a) as u64, Ordering::Relaxed);
+                    progress.advance((b - a) as u64);
+                }
+                None => {
+                    if stopped_before(base) {
+                        break;
+                    }
+                    let consumed = |a: usize, b: usize| release(src.map, a, b);
+                    let r = source::decode_chunks(
+                        src.data,
+                        src.compression,
+                        None,
+                        src.piece,
+                        src.max_line,
+                        &consumed,
+                        &mut |chunk| {
+                            let index = base | chunk.index;
+                            if stopped_before(index) {
+                                return false;
+                            }
+                            if !work(&mut st, index, &chunk.bytes, chunk.byte_base) {
+                                stop(index);
+                                return false;
+                            }
+                            progress.advance(chunk.bytes.len() as u64);
+                            true
+                        },
+                    );
+                    match r {
+                        Ok(info) => {
+                            frames.fetch_add(info.frames as usize, Ordering::Relaxed);
+                            text.fetch_add(info.text_bytes, Ordering::Relaxed);
+                        }
+                        Err(f) => {
+                            // Later pieces are not read; the fault is reported by part order.
+                            stop(base);
+                            let f = match f {
+                                StreamFault::LongLine { index, byte_base } => {
+                                    StreamFault::LongLine {
+                                        index: base | index,
+                                        byte_base,
+                                    }
+                                }
+                                f => f,
+                            };
+                            if let Ok(mut v) = faults.lock() {
+                                v.push((p, f));
+                            }
+                        }
+                    }
+                }
+            }
+        }
+        st
+    };
+    let helpers = threads.min(items.len()).saturating_sub(1);
+    let states = std::thread::scope(|s| {
+        let handles: Vec<_> = (0..helpers).map(|_| s.spawn(worker)).collect();
+        let mut states = vec![worker()];
+        states.extend(join_all(handles));
+        states
+    });
+    let mut faults = faults.into_inner().unwrap_or_else(|p| p.into_inner());
+    faults.sort_by_key(|f| f.0);
+    if let Some(f) = faults.into_iter().next() {
+        return Err(f);
+    }
+    Ok((
+        states,
+        DecodeInfo {
+            frames: frames.into_inner() as u64,
+            text_bytes: text.into_inner(),
+        },
+    ))
+}
+
 fn join_all<W>(handles: Vec<std::thread::ScopedJoinHandle<'_, W>>) -> Vec<W> {
     handles
         .into_iter()

@@ -114,6 +114,63 @@ pub fn hex_head(data: &[u8]) -> String {
         .join(" ")
 }
 
+/// The part files an input names, when it names several: every regular file of a directory
+/// (those whose names start with `.` or `_`, such as checksums and success markers that batch
+/// jobs leave beside their parts, are passed over), or the files matching a pattern with `*`,
+/// `?` or `[...]` when no file has that name. Sorted by path, so the parts and their order do
+/// not depend on the directory's listing order. `None` for one plain file (or standard input).
+pub fn list_parts(path: &Path) -> Result<Option<Vec<PathBuf>>> {
+    let shown = path.to_string_lossy();
+    if shown == "-" {
+        return Ok(None);
+    }
+    let mut parts = if path.is_dir() {
+        let rd = std::fs::read_dir(path).map_err(|e| Error::io(path, "list", e))?;
+        let mut v = Vec::new();
+        for entry in rd {
+            let entry = entry.map_err(|e| Error::io(path, "list", e))?;
+            let name = entry.file_name();
+            let name = name.to_string_lossy();
+            if name.starts_with('.') || name.starts_with('_') {
+                continue;
+            }
+            let p = entry.path();
+            // Follows links, so a folder of links to parts reads like the parts.
+            if p.is_file() {
+                v.push(p);
+            }
+        }
+        v
+    } else if !path.exists() && shown.contains(['*', '?', '[']) {
+        let found = glob::glob(&shown).map_err(|e| Error::Parameters {
+            problem: format!("{shown}: not a usable file pattern ({e})"),
+        })?;
+        let mut v = Vec::new();
+        for p in found {
+            let p = p.map_err(|e| Error::io(e.path().to_path_buf(), "list", e.into()))?;
+            if p.is_file() {
+                v.push(p);
+            }
+        }
+        v
+    } else {
+        return Ok(None);
+    };
+    if parts.is_empty() {
+        return Err(Error::Empty {
+            path: path.to_path_buf(),
+            detail: if path.is_dir() {
+                "the folder holds no part files (names starting with '.' or '_' are passed over)"
+                    .into()
+            } else {
+                "no file matches the pattern".into()
+            },
+        });
+    }
+    parts.sort();
+    Ok(Some(parts))
+}
+
 /// The bytes of one input, mapped or read, never modified.
 pub struct InputBytes {
     /// The path as given (`-` for standard input).

@@ -30,7 +30,10 @@ pub enum IdKind {
 /// A malformed line that was skipped (with `--skip-malformed`).
 #[derive(Debug, Clone, PartialEq, Eq, Serialize, Deserialize, schemars::JsonSchema)]
 pub struct BadLine {
-    /// Its line, from 1.
+    /// The part file it is in, when the input has several parts.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub part: Option<String>,
+    /// Its line, from 1 (within its part).
     pub line: u64,
     /// Byte offset of the line.
     pub byte: u64,
@@ -144,8 +147,12 @@ pub struct Intake {
     pub packed_from: Option<String>,
     /// The grammar read.
     pub format: InputFormat,
-    /// The compression found.
+    /// The compression found (for part files: theirs when they share one, else the first's).
     pub compression: Compression,
+    /// Part files read as one input (a folder or a pattern of parts); absent for one file.
+    /// `input_bytes` is then their total size.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub parts: Option<u64>,
     /// zstd frames in the input (several frames decode in parallel).
     pub frames: Option<u64>,
     /// Bytes on disk.
@@ -158,8 +165,11 @@ pub struct Intake {
     pub blank_lines: u64,
     /// Comment lines (`#` or `%`).
     pub comment_lines: u64,
-    /// The header line that was skipped, if any.
+    /// The header line that was skipped, if any (the first part's, for part files).
     pub header_line: Option<String>,
+    /// Header lines skipped: one per part file that repeats it (absent for one file).
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub header_lines: Option<u64>,
     /// Where the ids were read when columns were chosen: their positions (from 1), names and
     /// the delimiter, in words.
     #[serde(default, skip_serializing_if = "Option::is_none")]
@@ -221,6 +231,9 @@ pub struct DiskBuild {
 pub struct FirstTextId {
     /// The id as written (cut at 60 characters).
     pub id: String,
+    /// The part file it is in, when the input has several parts.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub part: Option<String>,
     /// Its line, from 1.
     pub line: u64,
     /// Byte offset of the id (in the decompressed text for compressed input).
@@ -237,6 +250,7 @@ impl Intake {
             packed_from: None,
             format: InputFormat::EdgeList,
             compression: Compression::None,
+            parts: None,
             frames: None,
             input_bytes: 0,
             text_bytes: 0,
@@ -244,6 +258,7 @@ impl Intake {
             blank_lines: 0,
             comment_lines: 0,
             header_line: None,
+            header_lines: None,
             id_columns: None,
             edge_lines: edges,
             extra_column_lines: 0,

@@ -8,8 +8,8 @@ use super::on_disk::Choice;
 use super::{FILL_BATCH, Loader, Scanned};
 use crate::error::Result;
 use crate::progress::Unit;
+use crate::read::pieces;
 use crate::read::scan::{self, ChunkOutcome, ScanRules};
-use crate::read::source::Compression;
 use crate::store::graph::{Graph, NodeIds};
 use crate::store::ids::{IntIndex, IntTally};
 use crate::store::intake::{IdKind, StageName};
@@ -43,13 +43,13 @@ impl Loader<'_> {
         // Pass 1: integer ids (the fast path). A large input spills its edges as runs for a
         // build on disk; else compressed input keeps its edges for pass 2 while they are few.
         let early = self.early_spiller();
-        let keep = self.src.compression != Compression::None && early.is_none();
+        let keep = self.any_compressed() && early.is_none();
         // Flat id arrays grow to the largest id seen, up to a cap tied to the input size and the
         // memory budget; larger ids go to a hash map.
         let per_worker = self.opts.memory_budget / 4 / (4 * self.threads as u64);
         let cap = match &self.mtx {
             Some(h) => h.rows + 1,
-            None => (self.src.data.len() as u64 * if keep { 16 } else { 4 })
+            None => (self.input_len() * if keep { 16 } else { 4 })
                 .min(per_worker)
                 .max(1 << 16),
         };
@@ -60,7 +60,7 @@ impl Loader<'_> {
         let over_budget = AtomicBool::new(false);
         let keep_limit = (self.opts.memory_budget / 2).min(KEEP_LIMIT);
         self.begin("scanning");
-        let rules = self.rules.clone();
+        let rules = self.part_rules();
         let (states, info) = self.each_piece(
             || IntWorker {
                 tally: IntTally::new(cap),
@@ -73,7 +73,14 @@ impl Loader<'_> {
                 if !keeping {
                     w.kept = Vec::new();
                 }
-                let go_on = w.scan(index, bytes, base, &rules, keeping, early.as_ref());
+                let go_on = w.scan(
+                    index,
+                    bytes,
+                    base,
+                    &rules[pieces::part_of(index)],
+                    keeping,
+                    early.as_ref(),
+                );
                 if keeping {
                     let added = w.kept.last().map_or(0, |(_, r)| r.bytes());
                     if kept_bytes.fetch_add(added, Ordering::Relaxed) + added > keep_limit {
@@ -186,7 +193,7 @@ impl Loader<'_> {
             sink.drain(bufs);
         } else {
             self.begin("filling");
-            let rules = &self.rules;
+            let rules = &self.part_rules();
             let (bufs, _) = self.each_piece(
                 SpillBuf::default,
                 |buf, i, bytes, base| {
@@ -201,7 +208,7 @@ impl Loader<'_> {
                         ok &= sink.put(buf, &dense);
                         batch.clear();
                     };
-                    scan::scan_chunk(i, bytes, base, rules, |a, b| {
+                    scan::scan_chunk(i, bytes, base, &rules[pieces::part_of(i)], |a, b| {
                         if let (Some(a), Some(b)) = (a.int, b.int)
                             && a != b
                         {

@@ -136,7 +136,10 @@ impl Default for LoadOptions {
 /// # Ok::<(), plumb::Error>(())
 /// ```
 pub fn load(path: &Path, opts: &LoadOptions, progress: &dyn Progress) -> Result<Graph> {
-    load_input(InputBytes::open(path)?, opts, progress)
+    match source::list_parts(path)? {
+        Some(parts) => load_parts(path, &parts, None, opts, progress),
+        None => load_input(InputBytes::open(path)?, opts, progress),
+    }
 }
 
 /// Load from bytes already opened.
@@ -154,7 +157,10 @@ pub fn pack(
     opts: &LoadOptions,
     progress: &dyn Progress,
 ) -> Result<(Graph, u64)> {
-    let g = load_to(InputBytes::open(path)?, Some(dest), opts, progress)?;
+    let g = match source::list_parts(path)? {
+        Some(parts) => load_parts(path, &parts, Some(dest), opts, progress)?,
+        None => load_to(InputBytes::open(path)?, Some(dest), opts, progress)?,
+    };
     // Built on disk just now (not a store file given as input): the merge wrote `dest`.
     if g.intake.on_disk.is_some() && g.intake.packed_from.is_none() {
         let bytes = std::fs::metadata(dest)
@@ -215,9 +221,114 @@ fn load_to(
         )?),
         _ => None,
     };
-    let mut loader = Loader::new(&input, compression, plan.as_ref(), opts, progress)?;
+    let src = source_of(
+        &input,
+        compression,
+        plan.as_ref(),
+        input.bytes().len(),
+        opts,
+    );
+    let parts = vec![(input.path.clone(), src)];
+    let mut loader = Loader::new(&input.path, parts, opts, progress)?;
     loader.dest = dest;
     loader.run()
+}
+
+/// Read the part files `paths` as one graph, for a distributed profile's share of them.
+pub(crate) fn load_paths(
+    shown: &Path,
+    paths: &[std::path::PathBuf],
+    opts: &LoadOptions,
+    progress: &dyn Progress,
+) -> Result<Graph> {
+    load_parts(shown, paths, None, opts, progress)
+}
+
+/// Read the part files `paths` (plain, zstd or gzip edge lists, in this order) as one graph;
+/// `shown` is the folder or pattern as given.
+fn load_parts(
+    shown: &Path,
+    paths: &[std::path::PathBuf],
+    dest: Option<&Path>,
+    opts: &LoadOptions,
+    progress: &dyn Progress,
+) -> Result<Graph> {
+    if opts.format == FormatChoice::MatrixMarket {
+        return Err(Error::Parameters {
+            problem: format!(
+                "{}: part files are read as edge lists; Matrix Market has one size line for \
+                 the whole matrix",
+                shown.display()
+            ),
+        });
+    }
+    let inputs = paths
+        .iter()
+        .map(|p| InputBytes::open(p))
+        .collect::<Result<Vec<_>>>()?;
+    let mut compressions = Vec::with_capacity(inputs.len());
+    for input in &inputs {
+        let bytes = input.bytes();
+        compressions.push(match source::sniff(bytes) {
+            Sniffed::Text => Compression::None,
+            Sniffed::Compressed(c @ (Compression::Zstd | Compression::Gzip)) => c,
+            Sniffed::Binary => {
+                return Err(Error::Binary {
+                    path: input.path.clone(),
+                    first_bytes: source::hex_head(bytes),
+                });
+            }
+            Sniffed::Unsupported(format) => {
+                return Err(Error::Unsupported {
+                    path: input.path.clone(),
+                    format,
+                });
+            }
+            Sniffed::Store | Sniffed::Compressed(_) => {
+                return Err(Error::Parameters {
+                    problem: format!(
+                        "{}: a part must be an edge list, plain, zstd or gzip (this one is a \
+                         store or Parquet file; read it on its own)",
+                        input.path.display()
+                    ),
+                });
+            }
+        });
+    }
+    let total: usize = inputs.iter().map(|i| i.bytes().len()).sum();
+    let parts = inputs
+        .iter()
+        .zip(compressions)
+        .map(|(i, c)| (i.path.clone(), source_of(i, c, None, total, opts)))
+        .collect();
+    let mut loader = Loader::new(shown, parts, opts, progress)?;
+    loader.dest = dest;
+    loader.run()
+}
+
+/// The pieces of one input (or part), sized from the whole input's `total` bytes.
+fn source_of<'a>(
+    input: &'a InputBytes,
+    compression: Compression,
+    parquet: Option<&'a ParquetPlan>,
+    total: usize,
+    opts: &LoadOptions,
+) -> Source<'a> {
+    let threads = rayon::current_num_threads();
+    let piece = if opts.piece_bytes > 0 {
+        opts.piece_bytes
+    } else {
+        // Enough pieces to balance the workers, each large enough to amortise hand-off.
+        (total / (threads * 16)).clamp(1 << 20, 16 << 20)
+    };
+    Source {
+        data: input.bytes(),
+        compression,
+        piece,
+        max_line: opts.max_line,
+        map: input.map(),
+        parquet,
+    }
 }
 
 /// Memory per node while building: offsets (8), raw degree (4), two cursors (8), id (8).
@@ -241,8 +352,18 @@ const FILL_BATCH: usize = 8192;
 /// How much text is looked at up front (banner, header guess).
 const PEEK: usize = 1 << 20;
 
+/// One part of the input: its path, its text source, and where its header line is.
+struct Part<'a> {
+    path: std::path::PathBuf,
+    src: Source<'a>,
+    header_at: Option<u64>,
+}
+
 struct Loader<'a> {
-    input: &'a InputBytes,
+    /// The input as given (a file, or the folder or pattern of its parts).
+    path: std::path::PathBuf,
+    /// The input's parts, in order; one for a single file.
+    parts: Vec<Part<'a>>,
     opts: &'a LoadOptions,
     progress: &'a dyn Progress,
     src: Source<'a>,
@@ -269,34 +390,34 @@ struct Scanned {
 
 impl<'a> Loader<'a> {
     fn new(
-        input: &'a InputBytes,
-        compression: Compression,
-        parquet: Option<&'a ParquetPlan>,
+        shown: &Path,
+        sources: Vec<(std::path::PathBuf, Source<'a>)>,
         opts: &'a LoadOptions,
         progress: &'a dyn Progress,
     ) -> Result<Self> {
-        let data = input.bytes();
-        let path = &input.path;
         let threads = rayon::current_num_threads();
-        let piece = if opts.piece_bytes > 0 {
-            opts.piece_bytes
-        } else {
-            // Enough pieces to balance the workers, each large enough to amortise hand-off.
-            (data.len() / (threads * 16)).clamp(1 << 20, 16 << 20)
-        };
-        let src = Source {
-            data,
-            compression,
-            piece,
-            max_line: opts.max_line,
-            map: input.map(),
-            parquet,
-        };
-        let head = peek(src, path)?;
+        let several = sources.len() > 1;
+        // The first part with any text leads: its header and banner decide for the rest.
+        let mut heads = Vec::with_capacity(sources.len());
+        for (p, src) in &sources {
+            heads.push(peek(*src, p)?);
+        }
+        let lead = heads.iter().position(|h| !h.is_empty()).unwrap_or(0);
+        let (path, src) = (&sources[lead].0, sources[lead].1);
+        let data = src.data;
+        let parquet = src.parquet;
+        let compression = src.compression;
+        let head = heads[lead].clone();
         if head.is_empty() {
             return Err(Error::Empty {
-                path: path.clone(),
-                detail: if data.is_empty() {
+                path: if several {
+                    shown.to_path_buf()
+                } else {
+                    path.clone()
+                },
+                detail: if several {
+                    "every part is empty".into()
+                } else if data.is_empty() {
                     "the file is empty".into()
                 } else if parquet.is_some() {
                     "the Parquet file has no rows".into()
@@ -306,6 +427,15 @@ impl<'a> Loader<'a> {
             });
         }
         let banner = mtx::has_banner(&head);
+        if several && banner && opts.format != FormatChoice::EdgeList {
+            return Err(Error::Parameters {
+                problem: format!(
+                    "{}: starts with a Matrix Market banner; part files are read as edge lists \
+                     (give --format edges to read its lines as edges)",
+                    path.display()
+                ),
+            });
+        }
         let use_mtx = match opts.format {
             _ if parquet.is_some() => false,
             FormatChoice::Auto => banner,
@@ -322,6 +452,7 @@ impl<'a> Loader<'a> {
             pick: None,
         };
         let mut header_line = None;
+        let mut lead_header: Option<Vec<u8>> = None;
         let mut id_columns = None;
         if use_mtx && opts.columns.is_some() {
             return Err(Error::Parameters {
@@ -405,11 +536,49 @@ impl<'a> Loader<'a> {
             if let (true, Some((at, line))) = (take, first) {
                 rules.header_at = Some(at as u64);
                 header_line = Some(crate::error::excerpt(line));
+                lead_header = Some(line.to_vec());
             }
             None
         };
+        // Each other part skips its first data line when it repeats the lead's header (batch
+        // jobs often write one per part), or, by the header option, always or when it looks
+        // like one.
+        let parts = sources
+            .into_iter()
+            .zip(&heads)
+            .enumerate()
+            .map(|(i, ((path, src), head))| {
+                let header_at = if i == lead {
+                    rules.header_at
+                } else {
+                    let lines = first_data_lines(head);
+                    lines.first().and_then(|&(at, line)| {
+                        let repeats = lead_header.as_deref() == Some(line);
+                        let skip = match opts.header {
+                            HeaderChoice::None => false,
+                            HeaderChoice::Skip => true,
+                            HeaderChoice::Auto => {
+                                repeats
+                                    || (opts.columns.is_none()
+                                        && edgeline::looks_like_header(
+                                            line,
+                                            lines.get(1).map(|x| x.1),
+                                        ))
+                            }
+                        } || (repeats && opts.columns.is_some());
+                        skip.then_some(at as u64)
+                    })
+                };
+                Part {
+                    path,
+                    src,
+                    header_at,
+                }
+            })
+            .collect();
         Ok(Loader {
-            input,
+            path: shown.to_path_buf(),
+            parts,
             opts,
             progress,
             src,
@@ -436,10 +605,11 @@ impl<'a> Loader<'a> {
     }
 
     fn begin(&self, name: &str) {
-        let total = match self.src.compression {
-            Compression::None => Some(self.src.data.len() as u64),
-            _ => None,
-        };
+        let plain = self
+            .parts
+            .iter()
+            .all(|p| p.src.compression == Compression::None);
+        let total = plain.then(|| self.input_len());
         self.progress.stage(name, total, Unit::Bytes);
     }
 
@@ -455,7 +625,7 @@ impl<'a> Loader<'a> {
         let filled = filler
             .finish(self.opts.directed)
             .map_err(|problem| Error::Output {
-                path: self.input.path.clone(),
+                path: self.path.clone(),
                 problem,
             })?;
         self.stage_done(StageName::SortAndMerge);
@@ -488,13 +658,21 @@ impl<'a> Loader<'a> {
         let mut total = Counts::default();
         let mut examples = Vec::new();
         let mut header_skipped = false;
+        let mut headers = 0;
         let mut line_base = self.mtx.as_ref().map_or(0, |h| h.lines_before_body);
+        let mut part = 0;
         for o in &scanned.outcomes {
+            if pieces::part_of(o.index) != part {
+                part = pieces::part_of(o.index);
+                line_base = 0;
+            }
             total.add(&o.counts);
             header_skipped |= o.header_skipped;
+            headers += u64::from(o.header_skipped);
             for f in &o.skipped {
                 if examples.len() < scan::EXAMPLES {
                     examples.push(BadLine {
+                        part: self.part_name(part),
                         line: line_base + f.line + 1,
                         byte: o.byte_base + f.offset as u64,
                         problem: describe(&f.error),
@@ -510,7 +688,7 @@ impl<'a> Loader<'a> {
         let isolated = offsets.par_windows(2).filter(|w| w[0] == w[1]).count() as u64;
         if n == 0 {
             return Err(Error::Empty {
-                path: self.input.path.clone(),
+                path: self.path.clone(),
                 detail: format!(
                     "{}: {}, {}, {}",
                     plural(total.lines, "line", "lines"),
@@ -532,7 +710,7 @@ impl<'a> Loader<'a> {
             None => (total.lines, total.comments),
         };
         Ok(Intake {
-            source: self.input.path.display().to_string(),
+            source: self.path.display().to_string(),
             packed_from: None,
             format: if self.mtx.is_some() {
                 InputFormat::MatrixMarket
@@ -541,13 +719,23 @@ impl<'a> Loader<'a> {
             } else {
                 InputFormat::EdgeList
             },
-            compression: self.src.compression,
+            compression: if self
+                .parts
+                .iter()
+                .all(|p| p.src.compression == self.parts[0].src.compression)
+            {
+                self.parts[0].src.compression
+            } else {
+                self.src.compression
+            },
             frames: scanned.frames,
-            input_bytes: self.src.data.len() as u64,
+            input_bytes: self.input_len(),
+            parts: (self.parts.len() > 1).then_some(self.parts.len() as u64),
             text_bytes: scanned.text_bytes,
             lines,
             blank_lines: total.blank,
             comment_lines: comments,
+            header_lines: (self.parts.len() > 1).then_some(headers),
             header_line: if header_skipped {
                 self.header_line.take()
             } else {
@@ -577,15 +765,23 @@ impl<'a> Loader<'a> {
     fn check(&self, mut outcomes: Vec<ChunkOutcome>, info: source::DecodeInfo) -> Result<Scanned> {
         outcomes.sort_by_key(|o| o.index);
         let mut line_base = self.mtx.as_ref().map_or(0, |h| h.lines_before_body);
-        for (expected, o) in outcomes.iter().enumerate() {
+        // Parts are numbered in the high bits of a piece's index and their pieces from 0.
+        let (mut part, mut expected) = (0, 0);
+        for o in &outcomes {
+            let here = pieces::part_of(o.index);
+            if here != part {
+                // Every part before this one had all its pieces (a part without text has none).
+                (part, expected, line_base) = (here, 0, 0);
+            }
             // Pieces after a stop may be missing or have run anyway; only an unbroken run of
             // pieces from the start places an error correctly, and a text-id stop hands over
             // to the text pass, which finds any later error again.
-            if o.index != expected {
+            if o.index != (part << pieces::PART_SHIFT | expected) {
                 break;
             }
             if let Some(f) = &o.error {
                 return Err(self.positioned(
+                    part,
                     &f.error,
                     line_base + f.line + 1,
                     o.byte_base + f.offset as u64,
@@ -596,13 +792,14 @@ impl<'a> Loader<'a> {
                 break;
             }
             line_base += o.counts.lines;
+            expected += 1;
         }
         if let Some(h) = &self.mtx {
             let found: u64 = outcomes.iter().map(|o| o.counts.edge_lines).sum();
             let malformed: u64 = outcomes.iter().map(|o| o.counts.malformed).sum();
             if found + malformed != h.entries {
                 return Err(Error::MatrixMarket {
-                    path: self.input.path.clone(),
+                    path: self.path.clone(),
                     pos: Position {
                         line: h.size_line.0,
                         byte: h.size_line.1 as u64,
@@ -629,13 +826,14 @@ impl<'a> Loader<'a> {
         })
     }
 
-    fn positioned(&self, e: &LineError, line: u64, byte: u64, excerpt: &str) -> Error {
-        let path = self.input.path.clone();
+    fn positioned(&self, part: usize, e: &LineError, line: u64, byte: u64, excerpt: &str) -> Error {
+        let Part { path, src, .. } = &self.parts[part];
+        let path = path.clone();
         let pos = Position {
             line,
             byte,
-            decoded: self.src.compression != Compression::None,
-            rows: self.src.compression == Compression::Parquet,
+            decoded: src.compression != Compression::None,
+            rows: src.compression == Compression::Parquet,
         };
         match e {
             LineError::Malformed { problem, expected } => Error::Malformed {
@@ -658,17 +856,18 @@ impl<'a> Loader<'a> {
         }
     }
 
-    fn stream_fault(&self, f: StreamFault, outcomes: &[ChunkOutcome]) -> Error {
+    fn stream_fault(&self, part: usize, f: StreamFault, outcomes: &[ChunkOutcome]) -> Error {
+        let Part { path, src, .. } = &self.parts[part];
         match f {
-            StreamFault::Codec { problem, .. } if self.src.compression == Compression::Parquet => {
+            StreamFault::Codec { problem, .. } if src.compression == Compression::Parquet => {
                 Error::Parquet {
-                    path: self.input.path.clone(),
+                    path: path.clone(),
                     problem: format!("unreadable ({problem})"),
                 }
             }
             StreamFault::Codec { problem, offset } => Error::Compressed {
-                path: self.input.path.clone(),
-                format: match self.src.compression {
+                path: path.clone(),
+                format: match src.compression {
                     Compression::Gzip => "gzip",
                     _ => "zstd",
                 },
@@ -678,11 +877,11 @@ impl<'a> Loader<'a> {
             StreamFault::LongLine { index, byte_base } => {
                 let line = outcomes
                     .iter()
-                    .filter(|o| o.index < index)
+                    .filter(|o| o.index < index && pieces::part_of(o.index) == part)
                     .map(|o| o.counts.lines)
                     .sum::<u64>()
                     + 1;
-                self.positioned(&LineError::TooLong, line, byte_base, "")
+                self.positioned(part, &LineError::TooLong, line, byte_base, "")
             }
         }
     }
@@ -695,8 +894,41 @@ impl<'a> Loader<'a> {
         work: impl Fn(&mut W, usize, &[u8], u64) -> bool + Sync,
         outcomes: &[ChunkOutcome],
     ) -> Result<(Vec<W>, source::DecodeInfo)> {
-        pieces::run(self.src, self.threads, self.progress, init, work)
-            .map_err(|f| self.stream_fault(f, outcomes))
+        if let [one] = &self.parts[..] {
+            return pieces::run(one.src, self.threads, self.progress, init, work)
+                .map_err(|f| self.stream_fault(0, f, outcomes));
+        }
+        let srcs: Vec<Source> = self.parts.iter().map(|p| p.src).collect();
+        pieces::run_parts(&srcs, self.threads, self.progress, init, work)
+            .map_err(|(part, f)| self.stream_fault(part, f, outcomes))
+    }
+
+    /// Bytes of input, over all parts.
+    fn input_len(&self) -> u64 {
+        self.parts.iter().map(|p| p.src.data.len() as u64).sum()
+    }
+
+    /// Whether any part is compressed (its edges are then worth keeping between the passes).
+    fn any_compressed(&self) -> bool {
+        self.parts
+            .iter()
+            .any(|p| p.src.compression != Compression::None)
+    }
+
+    /// The scan rules of each part (they differ only in where the header line is).
+    fn part_rules(&self) -> Vec<ScanRules> {
+        self.parts
+            .iter()
+            .map(|p| ScanRules {
+                header_at: p.header_at,
+                ..self.rules.clone()
+            })
+            .collect()
+    }
+
+    /// A part's path, for reports, when the input has several.
+    fn part_name(&self, part: usize) -> Option<String> {
+        (self.parts.len() > 1).then(|| self.parts[part].path.display().to_string())
     }
 
     fn max_nodes(&self) -> u64 {
@@ -706,11 +938,11 @@ impl<'a> Loader<'a> {
     fn index_fault(&self, f: IndexFault) -> Error {
         match f {
             IndexFault::TooManyNodes => Error::TooManyNodes {
-                path: self.input.path.clone(),
+                path: self.path.clone(),
                 limit: self.max_nodes(),
             },
             IndexFault::DegreeOverflow(node) => Error::DegreeTooLarge {
-                path: self.input.path.clone(),
+                path: self.path.clone(),
                 node,
                 limit: u32::MAX as u64 - 1,
             },

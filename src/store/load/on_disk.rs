@@ -99,12 +99,12 @@ impl Loader<'_> {
                     problem: format!(
                         "{}: a directed graph is built in memory only (the build on disk keeps \
                          no directions yet); drop --build disk",
-                        self.input.path.display()
+                        self.path.display()
                     ),
                 });
             }
             check_budget(
-                &self.input.path,
+                &self.path,
                 self.opts,
                 format!(
                     "{}, with a direction byte each (directed graphs build in memory only)",
@@ -117,7 +117,7 @@ impl Loader<'_> {
         let needs = self.disk_needs(n, entries, runs_written);
         match self.opts.build {
             BuildChoice::Memory => {
-                check_budget(&self.input.path, self.opts, what(), in_memory)?;
+                check_budget(&self.path, self.opts, what(), in_memory)?;
                 return Ok(Choice::Memory);
             }
             // Large adjacencies build faster and far leaner on disk (sorting replaces scattered
@@ -132,7 +132,7 @@ impl Loader<'_> {
         }
         // On disk the per-node arrays stay in memory; everything else streams.
         check_budget(
-            &self.input.path,
+            &self.path,
             self.opts,
             format!("even built on disk, the per-node arrays of {n} nodes"),
             per_node,
@@ -203,12 +203,19 @@ impl Loader<'_> {
     /// or the scratch disk looks short of room for the guessed size (the second pass then
     /// decides with the real sizes).
     pub(super) fn early_spiller(&self) -> Option<Spiller> {
-        let text = match self.src.compression {
-            Compression::None => self.src.data.len() as u64,
-            // Rendered rows take about 16 bytes each.
-            Compression::Parquet => self.src.parquet.map_or(0, |p| p.rows().saturating_mul(16)),
-            _ => (self.src.data.len() as u64).saturating_mul(GUESSED_RATIO),
-        };
+        let text: u64 = self
+            .parts
+            .iter()
+            .map(|part| {
+                let src = &part.src;
+                match src.compression {
+                    Compression::None => src.data.len() as u64,
+                    // Rendered rows take about 16 bytes each.
+                    Compression::Parquet => src.parquet.map_or(0, |p| p.rows().saturating_mul(16)),
+                    _ => (src.data.len() as u64).saturating_mul(GUESSED_RATIO),
+                }
+            })
+            .sum();
         // About 16 bytes of text per edge line, 8 bytes of adjacency under construction.
         let adjacency = text / 2;
         if self.opts.directed {
@@ -257,7 +264,7 @@ impl Loader<'_> {
         let usable = free.saturating_sub(self.opts.scratch_keep_free);
         if needed > usable {
             return Err(Error::ScratchFull {
-                path: self.input.path.clone(),
+                path: self.path.clone(),
                 dir: dir.to_path_buf(),
                 needed_mib: needed.div_ceil(1 << 20),
                 available_mib: usable >> 20,
@@ -276,7 +283,7 @@ impl Loader<'_> {
     fn disk_fault(&self, e: std::io::Error, dir: &Path, keys: u64) -> Error {
         if e.kind() == std::io::ErrorKind::StorageFull {
             Error::ScratchFull {
-                path: self.input.path.clone(),
+                path: self.path.clone(),
                 dir: dir.to_path_buf(),
                 needed_mib: (keys * 12).div_ceil(1 << 20),
                 available_mib: 0,
@@ -329,7 +336,7 @@ impl Loader<'_> {
         }
         if spiller.keys() != expected {
             return Err(Error::Output {
-                path: self.input.path.clone(),
+                path: self.path.clone(),
                 problem: format!(
                     "the second pass wrote {} adjacency entries where the first counted {expected}; \
                      was the input modified while being read?",

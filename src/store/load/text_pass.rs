@@ -3,6 +3,7 @@
 
 use super::{FILL_BATCH, FirstTextId, Loader, Scanned};
 use crate::error::{Result, excerpt};
+use crate::read::pieces;
 use crate::read::scan;
 use crate::store::graph::{Graph, NodeIds};
 use crate::store::ids::{TextIndex, TextTally};
@@ -14,25 +15,31 @@ impl Loader<'_> {
     pub(super) fn run_text(mut self) -> Result<Graph> {
         self.rules.text_ids = true;
         self.begin("scanning text ids");
-        let rules = self.rules.clone();
+        let rules = self.part_rules();
         let (states, info) = self.each_piece(
             || (TextTally::default(), Vec::new(), Vec::new()),
             |(t, outcomes, firsts), i, bytes, base| {
                 let mut first = None;
-                let o = scan::scan_chunk_at(i, bytes, base, &rules, |a, b, line_at| {
-                    if first.is_none()
-                        && let Some(tok) = [a, b].into_iter().find(|t| t.int.is_none())
-                    {
-                        // The id's own offset, unless it was unescaped out of the text.
-                        let at = (tok.raw.as_ptr() as usize)
-                            .checked_sub(bytes.as_ptr() as usize)
-                            .filter(|&at| at < bytes.len())
-                            .unwrap_or(line_at);
-                        first = Some((at, excerpt(tok.raw)));
-                    }
-                    t.edge(a.raw, b.raw);
-                    true
-                });
+                let o = scan::scan_chunk_at(
+                    i,
+                    bytes,
+                    base,
+                    &rules[pieces::part_of(i)],
+                    |a, b, line_at| {
+                        if first.is_none()
+                            && let Some(tok) = [a, b].into_iter().find(|t| t.int.is_none())
+                        {
+                            // The id's own offset, unless it was unescaped out of the text.
+                            let at = (tok.raw.as_ptr() as usize)
+                                .checked_sub(bytes.as_ptr() as usize)
+                                .filter(|&at| at < bytes.len())
+                                .unwrap_or(line_at);
+                            first = Some((at, excerpt(tok.raw)));
+                        }
+                        t.edge(a.raw, b.raw);
+                        true
+                    },
+                );
                 if let Some((at, raw)) = first {
                     // Lines of this piece before the id (0-based), counted once per piece.
                     let line = memchr::memchr_iter(b'\n', &bytes[..at]).count() as u64;
@@ -65,7 +72,7 @@ impl Loader<'_> {
                 // Batched like integer ids: the in-memory fill sorts each batch by node block.
                 let mut ok = true;
                 let mut dense: Vec<(u32, u32)> = Vec::with_capacity(FILL_BATCH);
-                scan::scan_chunk(i, bytes, base, &rules, |a, b| {
+                scan::scan_chunk(i, bytes, base, &rules[pieces::part_of(i)], |a, b| {
                     if a.raw != b.raw {
                         dense.push((index.get(a.raw), index.get(b.raw)));
                         if dense.len() == FILL_BATCH {
@@ -101,11 +108,12 @@ impl Loader<'_> {
         let before: u64 = scanned
             .outcomes
             .iter()
-            .filter(|o| o.index < piece)
+            .filter(|o| o.index < piece && pieces::part_of(o.index) == pieces::part_of(piece))
             .map(|o| o.counts.lines)
             .sum();
         let header = self.mtx.as_ref().map_or(0, |h| h.lines_before_body);
         Some(FirstTextId {
+            part: self.part_name(pieces::part_of(piece)),
             integer_too_large: id.bytes().all(|c| c.is_ascii_digit()),
             id,
             line: header + before + line + 1,

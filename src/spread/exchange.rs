@@ -1,0 +1,157 @@
+//! Rounds of all-to-all exchange on timely dataflow: each round every worker hands the engine
+//! batches addressed to workers, the engine routes them (within the process or over its own
+//! TCP channels) and its progress tracking says when the round's data has all arrived. Nothing
+//! here touches a socket or encodes bytes: the engine does both.
+
+use std::cell::RefCell;
+use std::collections::BTreeMap;
+use std::rc::Rc;
+
+use serde::{Deserialize, Serialize};
+use timely::container::CapacityContainerBuilder;
+use timely::dataflow::channels::pact::Pipeline;
+use timely::dataflow::operators::generic::Operator;
+use timely::dataflow::operators::{Exchange, Input, Probe};
+use timely::dataflow::{InputHandle, ProbeHandle};
+use timely::worker::Worker;
+
+/// Items per batch: large enough to amortise the engine's per-message cost, small enough that
+/// a round's buffers do not double a worker's memory at once.
+const BATCH: usize = 1 << 16;
+
+/// What travels between workers, always in batches.
+#[derive(Debug, Clone, Serialize, Deserialize)]
+pub(crate) enum Parcel {
+    /// Distinct-edge candidates (smaller id, larger id, direction bits 1: small→large,
+    /// 2: large→small).
+    Edges(Vec<(u64, u64, u8)>),
+    /// Nodes with no edge in their part (they still count).
+    Nodes(Vec<u64>),
+    /// Adjacency entries (node, neighbour) for the neighbour's owner... and the node's.
+    Adjacency(Vec<(u64, u64)>),
+    /// (node, neighbour, neighbour's degree).
+    NeighbourDegrees(Vec<(u64, u64, u32)>),
+    /// Open wedges to check: (middle of the check, far end, apex).
+    Wedges(Vec<(u64, u64, u64)>),
+    /// One triangle at each listed node.
+    Corners(Vec<u64>),
+    /// Component labels offered to nodes: (node, label).
+    Labels(Vec<(u64, u64)>),
+    /// Members of components: (label, degree).
+    Members(Vec<(u64, u32)>),
+    /// Candidate giant components: (size, label).
+    Giants(Vec<(u64, u64)>),
+    /// Candidate BFS sources: (hash key, id).
+    Candidates(Vec<(u64, u64)>),
+    /// Search frontiers offered to nodes: (node, one bit per source of the batch).
+    Frontier(Vec<(u64, u64)>),
+    /// A worker's partial figures, for worker 0.
+    Partial(Box<super::Partial>),
+    /// A worker's answer to "is there more to do?" (true) in a loop of rounds.
+    More(bool),
+    /// A worker could not read its parts: (worker, class of the failure, message), for all.
+    Fault(Vec<(u32, u8, String)>),
+}
+
+/// One worker's end of the exchange.
+pub(crate) struct Rounds<'w> {
+    worker: &'w mut Worker,
+    input: InputHandle<u64, CapacityContainerBuilder<Vec<(u32, Parcel)>>>,
+    probe: ProbeHandle<u64>,
+    inbox: Rc<RefCell<BTreeMap<u64, Vec<Parcel>>>>,
+    /// Items handed to the engine for other workers, by round.
+    pub(crate) sent: u64,
+}
+
+impl<'w> Rounds<'w> {
+    pub(crate) fn new(worker: &'w mut Worker) -> Self {
+        let mut input = InputHandle::new();
+        let inbox: Rc<RefCell<BTreeMap<u64, Vec<Parcel>>>> = Rc::new(RefCell::new(BTreeMap::new()));
+        let sink = inbox.clone();
+        let probe = worker.dataflow(|scope| {
+            scope
+                .input_from(&mut input)
+                .container::<Vec<_>>()
+                .exchange(|(dest, _): &(u32, Parcel)| *dest as u64)
+                // Moves what arrives into the inbox and passes nothing on: the probe after it
+                // passes a round only once every parcel of the round is in the inbox.
+                .unary::<CapacityContainerBuilder<Vec<()>>, _, _, _>(
+                    Pipeline,
+                    "inbox",
+                    move |_, _| {
+                        move |input, _output| {
+                            // A faster worker's next round may arrive before this round ends:
+                            // keep parcels by round.
+                            input.for_each(|cap, data| {
+                                let round = cap.least().copied().unwrap_or_default();
+                                sink.borrow_mut()
+                                    .entry(round)
+                                    .or_default()
+                                    .extend(data.drain(..).map(|(_, p)| p));
+                            });
+                        }
+                    },
+                )
+                .probe()
+                .0
+        });
+        Rounds {
+            worker,
+            input,
+            probe,
+            inbox,
+            sent: 0,
+        }
+    }
+
+    pub(crate) fn index(&self) -> usize {
+        self.worker.index()
+    }
+
+    pub(crate) fn peers(&self) -> usize {
+        self.worker.peers()
+    }
+
+    /// Send `items` to each worker (`out[w]` for worker w) wrapped by `wrap`, end the round and
+    /// return every parcel addressed to this worker in it.
+    pub(crate) fn round<T>(
+        &mut self,
+        out: Vec<Vec<T>>,
+        wrap: impl Fn(Vec<T>) -> Parcel,
+    ) -> Vec<Parcel> {
+        for (dest, mut items) in out.into_iter().enumerate() {
+            if dest != self.worker.index() {
+                self.sent += items.len() as u64;
+            }
+            while !items.is_empty() {
+                let rest = items.split_off(items.len().min(BATCH));
+                self.input.send((dest as u32, wrap(items)));
+                items = rest;
+            }
+        }
+        // Fault injection for the tests of a process dying mid-run: PLUMB_SPREAD_CRASH=W:R
+        // makes worker W abort at the start of round R's wait, as a killed process would.
+        if let Ok(v) = std::env::var("PLUMB_SPREAD_CRASH")
+            && let Some((w, r)) = v.split_once(':')
+            && w.parse() == Ok(self.worker.index())
+            && r.parse() == Ok(*self.input.time())
+        {
+            std::process::abort();
+        }
+        let round = *self.input.time();
+        self.input.advance_to(round + 1);
+        while self.probe.less_than(self.input.time()) {
+            self.worker.step();
+        }
+        self.inbox.borrow_mut().remove(&round).unwrap_or_default()
+    }
+
+    /// Every worker says whether it has more to do; true when any has.
+    pub(crate) fn any(&mut self, more: bool) -> bool {
+        let peers = self.peers();
+        let got = self.round((0..peers).map(|_| vec![more]).collect(), |v| {
+            Parcel::More(v[0])
+        });
+        got.iter().any(|p| matches!(p, Parcel::More(true)))
+    }
+}

@@ -1,0 +1,577 @@
+//! One worker's share of the distributed profile: read its parts, then rounds of exchange that
+//! gather each node's adjacency at its owner, and the figures computed from there. Every id is
+//! the original integer id; a node belongs to the worker its id hashes to.
+
+use std::path::{Path, PathBuf};
+
+use super::exchange::{Parcel, Rounds};
+use super::{ComponentTally, Partial, SpreadOptions};
+use crate::error::{Error, ErrorClass, Result};
+use crate::exact::clustering::ClusteringParts;
+use crate::progress::Quiet;
+use crate::store::graph::{Graph, NodeIds};
+use crate::store::intake::IdKind;
+use crate::store::load::LoadOptions;
+
+/// Open wedges a worker sends in one round of the triangle count: bounds the round's buffers
+/// (24 bytes a wedge, once sent and once received).
+const WEDGES_PER_ROUND: usize = 1 << 23;
+
+/// The worker that owns node `id` among `peers` (a fixed mix, so every process agrees).
+pub(crate) fn owner(id: u64, peers: usize) -> usize {
+    (mix(id) % peers as u64) as usize
+}
+
+fn mix(mut x: u64) -> u64 {
+    // splitmix64's finaliser (Steele, Lea & Flood 2014): consecutive ids spread evenly.
+    x = (x ^ (x >> 30)).wrapping_mul(0xbf58_476d_1ce4_e5b9);
+    x = (x ^ (x >> 27)).wrapping_mul(0x94d0_49bb_1331_11eb);
+    x ^ (x >> 31)
+}
+
+/// The adjacency of the nodes a worker owns, ids ascending.
+struct Owned {
+    nodes: Vec<u64>,
+    offsets: Vec<usize>,
+    targets: Vec<u64>,
+    /// The degree of `targets[i]`.
+    target_degrees: Vec<u32>,
+}
+
+impl Owned {
+    fn degree(&self, i: usize) -> u32 {
+        (self.offsets[i + 1] - self.offsets[i]) as u32
+    }
+
+    fn neighbours(&self, i: usize) -> &[u64] {
+        &self.targets[self.offsets[i]..self.offsets[i + 1]]
+    }
+
+    fn index_of(&self, id: u64) -> Option<usize> {
+        self.nodes.binary_search(&id).ok()
+    }
+}
+
+/// Read this worker's parts: the graph they make (with each edge's directions, for the
+/// cleaning counts), or `None` when it has no parts or they hold no lines.
+fn read_share(shown: &Path, mine: &[PathBuf], load: &LoadOptions) -> Result<Option<Graph>> {
+    if mine.is_empty() {
+        return Ok(None);
+    }
+    let opts = LoadOptions {
+        directed: true,
+        ..load.clone()
+    };
+    match crate::store::load::load_paths(shown, mine, &opts, &Quiet) {
+        Ok(g) if g.ids.kind() == IdKind::Text => Err(Error::Parameters {
+            problem: format!(
+                "{}: a distributed profile reads integer ids only, and {} has text ids ({})",
+                shown.display(),
+                g.intake
+                    .first_text_id
+                    .as_ref()
+                    .and_then(|f| f.part.clone())
+                    .unwrap_or_else(|| mine[0].display().to_string()),
+                g.intake
+                    .first_text_id
+                    .as_ref()
+                    .map_or(String::new(), |f| format!("{:?} on line {}", f.id, f.line)),
+            ),
+        }),
+        Ok(g) => Ok(Some(g)),
+        // Parts with no lines at all add nothing.
+        Err(Error::Empty { .. }) => Ok(None),
+        Err(e) => Err(e),
+    }
+}
+
+fn id_of(ids: &NodeIds, u: usize) -> u64 {
+    match ids {
+        NodeIds::Range { first, .. } => first + u as u64,
+        NodeIds::Ints(v) => v[u],
+        NodeIds::Text { .. } => unreachable!("text ids are refused before"),
+    }
+}
+
+/// Run this worker's share; worker 0 returns the merged partial figures.
+pub(crate) fn run(
+    x: &mut Rounds,
+    shown: &Path,
+    parts: &[PathBuf],
+    load: &LoadOptions,
+    want: &SpreadOptions,
+) -> Result<Option<Partial>> {
+    let (me, peers) = (x.index(), x.peers());
+    let mine: Vec<PathBuf> = parts
+        .iter()
+        .enumerate()
+        .filter(|(i, _)| i % peers == me)
+        .map(|(_, p)| p.clone())
+        .collect();
+    let started = std::time::Instant::now();
+    let share = read_share(shown, &mine, load);
+    // Everyone learns of a failure before any other round, so no worker waits on one that quit.
+    let fault = share
+        .as_ref()
+        .err()
+        .map(|e| (me as u32, class_code(e.class()), e.to_string()));
+    let got = x.round(
+        (0..peers)
+            .map(|_| fault.iter().cloned().collect())
+            .collect(),
+        Parcel::Fault,
+    );
+    let share = share?;
+    let first = got
+        .into_iter()
+        .flat_map(|p| match p {
+            Parcel::Fault(v) => v,
+            _ => Vec::new(),
+        })
+        .min_by_key(|f| f.0);
+    if let Some((worker, class, problem)) = first {
+        return Err(Error::Remote {
+            problem: format!("worker {worker} of the run failed: {problem}"),
+            class: class_of(class),
+        });
+    }
+    let mut partial = Partial {
+        read_seconds: started.elapsed().as_secs_f64(),
+        ..Default::default()
+    };
+    let clock = std::time::Instant::now();
+
+    // Round: every distinct edge to the worker its pair hashes to, with its directions; nodes
+    // without edges to their owners.
+    let mut edges_out: Vec<Vec<(u64, u64, u8)>> = vec![Vec::new(); peers];
+    let mut lone_out: Vec<Vec<u64>> = vec![Vec::new(); peers];
+    if let Some(g) = &share {
+        partial.add_intake(&g.intake, &mine);
+        let dirs = g.directions.as_ref();
+        let offsets = g.csr.offsets();
+        for u in 0..g.node_count() {
+            let a = id_of(&g.ids, u);
+            let (s, e) = (offsets[u] as usize, offsets[u + 1] as usize);
+            if s == e {
+                lone_out[owner(a, peers)].push(a);
+            }
+            for k in s..e {
+                let b = id_of(&g.ids, g.csr.targets()[k] as usize);
+                if a < b {
+                    // Entry flags: 1 for u → v as written, 2 for v → u.
+                    let f = dirs.map_or(3, |d| d[k]);
+                    edges_out[owner(mix(a) ^ b, peers)].push((a, b, f));
+                }
+            }
+        }
+    }
+    drop(share);
+    let lone_in = x.round(lone_out, Parcel::Nodes);
+    let mut edges: Vec<(u64, u64, u8)> = Vec::new();
+    for p in x.round(edges_out, Parcel::Edges) {
+        if let Parcel::Edges(v) = p {
+            edges.extend(v);
+        }
+    }
+    edges.sort_unstable_by_key(|e| (e.0, e.1));
+    let mut distinct: Vec<(u64, u64)> = Vec::with_capacity(edges.len());
+    let mut flags: u8 = 0;
+    for (i, &(a, b, f)) in edges.iter().enumerate() {
+        flags |= f;
+        if edges.get(i + 1).is_none_or(|n| (n.0, n.1) != (a, b)) {
+            distinct.push((a, b));
+            partial.directed_pairs += flags.count_ones() as u64;
+            flags = 0;
+        }
+    }
+    drop(edges);
+    partial.edges = distinct.len() as u64;
+
+    // Round: each edge to both ends' owners, which then hold their nodes' whole lists.
+    let mut adj_out: Vec<Vec<(u64, u64)>> = vec![Vec::new(); peers];
+    for &(a, b) in &distinct {
+        adj_out[owner(a, peers)].push((a, b));
+        adj_out[owner(b, peers)].push((b, a));
+    }
+    drop(distinct);
+    let mut adj: Vec<(u64, u64)> = Vec::new();
+    for p in x.round(adj_out, Parcel::Adjacency) {
+        if let Parcel::Adjacency(v) = p {
+            adj.extend(v);
+        }
+    }
+    for p in lone_in {
+        if let Parcel::Nodes(v) = p {
+            // A node without edges in one part may have some in another: (id, id) marks it
+            // and is dropped from its list below.
+            adj.extend(v.into_iter().map(|a| (a, a)));
+        }
+    }
+    adj.sort_unstable();
+    adj.dedup();
+    let mut owned = Owned {
+        nodes: Vec::new(),
+        offsets: vec![0],
+        targets: Vec::with_capacity(adj.len()),
+        target_degrees: Vec::new(),
+    };
+    for (i, &(a, b)) in adj.iter().enumerate() {
+        if a != b {
+            owned.targets.push(b);
+        }
+        if adj.get(i + 1).is_none_or(|n| n.0 != a) {
+            owned.nodes.push(a);
+            owned.offsets.push(owned.targets.len());
+        }
+    }
+    drop(adj);
+
+    // Round: each node tells its neighbours' owners its degree.
+    let mut deg_out: Vec<Vec<(u64, u64, u32)>> = vec![Vec::new(); peers];
+    for i in 0..owned.nodes.len() {
+        let (a, d) = (owned.nodes[i], owned.degree(i));
+        for &b in owned.neighbours(i) {
+            deg_out[owner(b, peers)].push((b, a, d));
+        }
+    }
+    let mut nd: Vec<(u64, u64, u32)> = Vec::new();
+    for p in x.round(deg_out, Parcel::NeighbourDegrees) {
+        if let Parcel::NeighbourDegrees(v) = p {
+            nd.extend(v);
+        }
+    }
+    // Sorted by (node, neighbour), the messages line up with the sorted lists.
+    nd.sort_unstable_by_key(|e| (e.0, e.1));
+    owned.target_degrees = nd.into_iter().map(|e| e.2).collect();
+    for i in 0..owned.nodes.len() {
+        let d = owned.degree(i) as u128;
+        let around: u128 = owned.target_degrees[owned.offsets[i]..owned.offsets[i + 1]]
+            .iter()
+            .map(|&k| k as u128)
+            .sum();
+        partial.nodes += 1;
+        let slot = d as usize;
+        if partial.histogram.len() <= slot {
+            partial.histogram.resize(slot + 1, 0);
+        }
+        partial.histogram[slot] += 1;
+        partial.sums.0 += d * around;
+        partial.sums.1 += d * d;
+        partial.sums.2 += d * d * d;
+    }
+    partial.degree_seconds = clock.elapsed().as_secs_f64();
+    let clock = std::time::Instant::now();
+
+    let label = components(x, &owned, &mut partial);
+    partial.component_seconds = clock.elapsed().as_secs_f64();
+    let clock = std::time::Instant::now();
+    if want.sources > 0 {
+        distances(x, &owned, &label, want, &mut partial);
+        partial.distance_seconds = clock.elapsed().as_secs_f64();
+    }
+    let clock = std::time::Instant::now();
+    if want.clustering {
+        triangles(x, &owned, &mut partial);
+        partial.triangle_seconds = clock.elapsed().as_secs_f64();
+    }
+    partial.exchanged = x.sent;
+
+    // Round: every partial to worker 0.
+    let mut out: Vec<Vec<Partial>> = (0..peers).map(|_| Vec::new()).collect();
+    out[0].push(partial);
+    let got = x.round(out, |mut v| Parcel::Partial(Box::new(v.remove(0))));
+    if me != 0 {
+        return Ok(None);
+    }
+    let mut all = Partial::default();
+    let mut first = true;
+    for p in got {
+        if let Parcel::Partial(p) = p {
+            if first {
+                all = *p;
+                first = false;
+            } else {
+                all.merge(*p);
+            }
+        }
+    }
+    Ok(Some(all))
+}
+
+/// Connected components by label propagation: every node takes the smallest id it hears of
+/// and passes a new label on to its neighbours, until no label changes anywhere (as many
+/// rounds as the longest distance from a component's smallest id, plus one). Then each
+/// component's owner (of its label) tallies its nodes and edges.
+fn components(x: &mut Rounds, owned: &Owned, partial: &mut Partial) -> Vec<u64> {
+    let peers = x.peers();
+    let n = owned.nodes.len();
+    let mut label: Vec<u64> = (0..n)
+        .map(|i| {
+            owned
+                .neighbours(i)
+                .iter()
+                .copied()
+                .fold(owned.nodes[i], u64::min)
+        })
+        .collect();
+    let mut changed: Vec<bool> = vec![true; n];
+    loop {
+        let mut out: Vec<Vec<(u64, u64)>> = vec![Vec::new(); peers];
+        let mut any = false;
+        for i in 0..n {
+            if !std::mem::take(&mut changed[i]) {
+                continue;
+            }
+            for &b in owned.neighbours(i) {
+                if label[i] < b {
+                    out[owner(b, peers)].push((b, label[i]));
+                    any = true;
+                }
+            }
+        }
+        if !x.any(any) {
+            break;
+        }
+        partial.label_rounds += 1;
+        for p in x.round(out, Parcel::Labels) {
+            if let Parcel::Labels(v) = p {
+                for (b, l) in v {
+                    if let Some(i) = owned.index_of(b)
+                        && l < label[i]
+                    {
+                        label[i] = l;
+                        changed[i] = true;
+                    }
+                }
+            }
+        }
+    }
+    let mut out: Vec<Vec<(u64, u32)>> = vec![Vec::new(); peers];
+    for i in 0..n {
+        out[owner(label[i], peers)].push((label[i], owned.degree(i)));
+    }
+    let mut members: Vec<(u64, u32)> = Vec::new();
+    for p in x.round(out, Parcel::Members) {
+        if let Parcel::Members(v) = p {
+            members.extend(v);
+        }
+    }
+    members.sort_unstable_by_key(|m| m.0);
+    let mut tally = ComponentTally::default();
+    for run in members.chunk_by(|a, b| a.0 == b.0) {
+        let size = run.len() as u64;
+        let ends: u64 = run.iter().map(|m| m.1 as u64).sum();
+        tally.add(run[0].0, size, ends / 2);
+    }
+    partial.components = tally;
+    label
+}
+
+/// Distances from sampled sources in the giant component: every worker offers its largest
+/// component and everyone takes the largest (the smallest label on a tie, as the single-machine
+/// profile); the sources are the `k` giant nodes of smallest seeded hash (a uniform sample
+/// without replacement), searched 64 at a time: one bit per source in each node's word, a
+/// frontier round per level. Each source's count of nodes at each distance is exact, so the
+/// single-machine estimator turns them into the same figures and intervals.
+fn distances(
+    x: &mut Rounds,
+    owned: &Owned,
+    label: &[u64],
+    want: &SpreadOptions,
+    partial: &mut Partial,
+) {
+    let peers = x.peers();
+    let n = owned.nodes.len();
+    let offer = partial.components.giant.map(|(s, l, _)| (s, l));
+    let got = x.round(
+        (0..peers).map(|_| offer.into_iter().collect()).collect(),
+        Parcel::Giants,
+    );
+    let giant = got
+        .into_iter()
+        .flat_map(|p| match p {
+            Parcel::Giants(v) => v,
+            _ => Vec::new(),
+        })
+        .max_by_key(|&(s, l)| (s, std::cmp::Reverse(l)));
+    let Some((giant_size, giant)) = giant else {
+        return;
+    };
+    let key = |id: u64| mix(id ^ mix(want.seed));
+    let mut mine: Vec<(u64, u64)> = (0..n)
+        .filter(|&i| label[i] == giant)
+        .map(|i| (key(owned.nodes[i]), owned.nodes[i]))
+        .collect();
+    mine.sort_unstable();
+    mine.truncate(want.sources);
+    let got = x.round(
+        (0..peers).map(|_| mine.clone()).collect(),
+        Parcel::Candidates,
+    );
+    let mut all: Vec<(u64, u64)> = got
+        .into_iter()
+        .flat_map(|p| match p {
+            Parcel::Candidates(v) => v,
+            _ => Vec::new(),
+        })
+        .collect();
+    all.sort_unstable();
+    all.truncate(want.sources);
+    let sources: Vec<u64> = all.into_iter().map(|c| c.1).collect();
+    partial.giant_nodes = giant_size;
+    partial.sources = sources.len() as u64;
+    let mut per_source: Vec<Vec<u64>> = vec![Vec::new(); sources.len()];
+    for (b, batch) in sources.chunks(64).enumerate() {
+        let mut seen: Vec<u64> = vec![0; n];
+        let mut frontier: Vec<u64> = vec![0; n];
+        for (bit, &s) in batch.iter().enumerate() {
+            if let Some(i) = owned.index_of(s) {
+                seen[i] |= 1 << bit;
+                frontier[i] |= 1 << bit;
+            }
+        }
+        let mut level = 0usize;
+        loop {
+            let mut out: Vec<Vec<(u64, u64)>> = vec![Vec::new(); peers];
+            for (i, f) in frontier.iter_mut().enumerate() {
+                let f = std::mem::take(f);
+                if f != 0 {
+                    for &v in owned.neighbours(i) {
+                        out[owner(v, peers)].push((v, f));
+                    }
+                }
+            }
+            let mut next: Vec<u64> = vec![0; n];
+            for p in x.round(out, Parcel::Frontier) {
+                if let Parcel::Frontier(v) = p {
+                    for (v, f) in v {
+                        if let Some(i) = owned.index_of(v) {
+                            next[i] |= f & !seen[i];
+                        }
+                    }
+                }
+            }
+            level += 1;
+            let mut any = false;
+            for i in 0..n {
+                let mut w = next[i];
+                if w == 0 {
+                    continue;
+                }
+                any = true;
+                seen[i] |= w;
+                while w != 0 {
+                    let bit = w.trailing_zeros() as usize;
+                    let counts = &mut per_source[b * 64 + bit];
+                    if counts.len() < level {
+                        counts.resize(level, 0);
+                    }
+                    counts[level - 1] += 1;
+                    w &= w - 1;
+                }
+            }
+            frontier = next;
+            partial.bfs_rounds += 1;
+            if !x.any(any) {
+                break;
+            }
+        }
+    }
+    partial.per_source = per_source;
+}
+
+/// Exact triangles: each edge points from the end of lower (degree, id) to the higher; every
+/// pair of a node's out-neighbours is an open wedge, sent to the owner of its lower end, which
+/// checks the closing edge in its list. Each triangle is found once, at its lowest corner, and
+/// its three corners are credited. Wedges go out in bounded rounds until none is left.
+fn triangles(x: &mut Rounds, owned: &Owned, partial: &mut Partial) {
+    let peers = x.peers();
+    let n = owned.nodes.len();
+    let mut corners: Vec<u64> = vec![0; n];
+    let key = |d: u32, id: u64| (d, id);
+    let mut next = 0usize;
+    let mut out_list: Vec<(u32, u64)> = Vec::new();
+    loop {
+        let mut out: Vec<Vec<(u64, u64, u64)>> = vec![Vec::new(); peers];
+        let mut sent = 0usize;
+        while next < n && sent < WEDGES_PER_ROUND {
+            let (a, da) = (owned.nodes[next], owned.degree(next));
+            out_list.clear();
+            let (s, e) = (owned.offsets[next], owned.offsets[next + 1]);
+            for k in s..e {
+                let (b, db) = (owned.targets[k], owned.target_degrees[k]);
+                if key(db, b) > key(da, a) {
+                    out_list.push(key(db, b));
+                }
+            }
+            out_list.sort_unstable();
+            for (i, &(_, b)) in out_list.iter().enumerate() {
+                for &(_, c) in &out_list[i + 1..] {
+                    out[owner(b, peers)].push((b, c, a));
+                }
+            }
+            sent += out_list.len() * out_list.len().saturating_sub(1) / 2;
+            next += 1;
+        }
+        let more = next < n;
+        let mut credit: Vec<Vec<u64>> = vec![Vec::new(); peers];
+        for p in x.round(out, Parcel::Wedges) {
+            if let Parcel::Wedges(v) = p {
+                for (b, c, a) in v {
+                    if let Some(i) = owned.index_of(b)
+                        && owned.neighbours(i).binary_search(&c).is_ok()
+                    {
+                        corners[i] += 1;
+                        credit[owner(a, peers)].push(a);
+                        credit[owner(c, peers)].push(c);
+                    }
+                }
+            }
+        }
+        for p in x.round(credit, Parcel::Corners) {
+            if let Parcel::Corners(v) = p {
+                for a in v {
+                    if let Some(i) = owned.index_of(a) {
+                        corners[i] += 1;
+                    }
+                }
+            }
+        }
+        partial.wedge_rounds += 1;
+        if !x.any(more) {
+            break;
+        }
+    }
+    let mut parts = ClusteringParts::default();
+    for (i, &t) in corners.iter().enumerate() {
+        let d = owned.degree(i);
+        // As `exact::clustering::local_from`, to the last digit.
+        let df = d as f64;
+        let c = if df < 2.0 {
+            0.0
+        } else {
+            2.0 * t as f64 / (df * (df - 1.0))
+        };
+        parts.add(d, c);
+        partial.corner_sum += t;
+    }
+    partial.clustering = Some(parts);
+}
+
+fn class_code(c: ErrorClass) -> u8 {
+    match c {
+        ErrorClass::BadInput => 0,
+        ErrorClass::Io => 1,
+        ErrorClass::Budget => 2,
+        ErrorClass::Usage => 3,
+    }
+}
+
+fn class_of(code: u8) -> ErrorClass {
+    match code {
+        1 => ErrorClass::Io,
+        2 => ErrorClass::Budget,
+        3 => ErrorClass::Usage,
+        _ => ErrorClass::BadInput,
+    }
+}
