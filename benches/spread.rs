@@ -37,6 +37,29 @@ fn run(args: &[&str]) -> (f64, f64) {
     (secs, ru.ru_maxrss as f64 / 1024.0)
 }
 
+/// The report's stage times, in words.
+fn stages(path: &Path) -> String {
+    let doc: Value = serde_json::from_slice(&std::fs::read(path).unwrap()).unwrap();
+    let mut all: Vec<&Value> = Vec::new();
+    all.extend(
+        doc["profile"]["intake"]["stages"]
+            .as_array()
+            .into_iter()
+            .flatten(),
+    );
+    all.extend(doc["profile"]["stages"].as_array().into_iter().flatten());
+    all.iter()
+        .map(|s| {
+            format!(
+                "{} {:.1} s",
+                s["name"].as_str().unwrap_or("?"),
+                s["seconds"].as_f64().unwrap_or(0.0)
+            )
+        })
+        .collect::<Vec<_>>()
+        .join(" · ")
+}
+
 fn exact_part(path: &Path) -> Value {
     let doc: Value = serde_json::from_slice(&std::fs::read(path).unwrap()).unwrap();
     let p = &doc["profile"];
@@ -91,13 +114,18 @@ fn main() {
         "profile",
         d_str,
         "--figures",
-        "clustering",
+        "clustering,distances",
         "--clustering",
         "exact",
+        "--distances",
+        "sources",
         "--json",
         single.to_str().unwrap(),
     ]);
-    println!("  single machine          {t:7.2} s   peak {peak:7.0} MiB");
+    println!(
+        "  single machine          {t:7.2} s   peak {peak:7.0} MiB   {}",
+        stages(&single)
+    );
     let want = exact_part(&single);
     for p in ["1", "2"] {
         let json = tmp.path().join(format!("spread-{p}.json"));
@@ -106,6 +134,8 @@ fn main() {
             d_str,
             "--local",
             p,
+            "--sources",
+            "64",
             "--json",
             json.to_str().unwrap(),
         ]);
@@ -117,6 +147,8 @@ fn main() {
             doc["spread"]["label_rounds"],
             doc["spread"]["wedge_rounds"],
         );
+        println!("      stages: {}", stages(&json));
+        println!("      exchanged by kind: {}", doc["spread"]["exchanged"]);
         assert_eq!(
             exact_part(&json),
             want,

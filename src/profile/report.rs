@@ -104,6 +104,41 @@ pub struct SpreadRun {
     /// Frontier rounds of the sampled-source searches (one per level of each batch).
     #[serde(default)]
     pub bfs_rounds: u64,
+    /// The items exchanged, by kind.
+    #[serde(default)]
+    pub exchanged: Exchanged,
+}
+
+/// Items sent to other workers, by what they were (for the sizing of a run).
+#[derive(Debug, Clone, Copy, Default, PartialEq, Serialize, Deserialize, schemars::JsonSchema)]
+pub struct Exchanged {
+    /// Edge candidates (16 bytes and a direction byte each).
+    pub edges: u64,
+    /// Adjacency entries (16 bytes each).
+    pub adjacency: u64,
+    /// Neighbours' degrees (20 bytes each).
+    pub degrees: u64,
+    /// Component labels offered (16 bytes each) and component members (12 bytes each).
+    pub labels: u64,
+    /// Open wedges checked (24 bytes each) and triangle corners credited (8 bytes each).
+    pub wedges: u64,
+    /// Search frontiers (16 bytes each: a node and 64 source bits).
+    pub frontier: u64,
+    /// Everything else: lone nodes, candidates, partial figures, control.
+    pub other: u64,
+}
+
+impl Exchanged {
+    /// Add another worker's counts.
+    pub fn merge(&mut self, o: &Exchanged) {
+        self.edges += o.edges;
+        self.adjacency += o.adjacency;
+        self.degrees += o.degrees;
+        self.labels += o.labels;
+        self.wedges += o.wedges;
+        self.frontier += o.frontier;
+        self.other += o.other;
+    }
 }
 
 /// The id sketch when it is in a layout this plumb reads, else none.

@@ -15,6 +15,8 @@ use timely::dataflow::operators::{Exchange, Input, Probe};
 use timely::dataflow::{InputHandle, ProbeHandle};
 use timely::worker::Worker;
 
+use crate::profile::report::Exchanged;
+
 /// Items per batch: large enough to amortise the engine's per-message cost, small enough that
 /// a round's buffers do not double a worker's memory at once.
 const BATCH: usize = 1 << 16;
@@ -31,11 +33,13 @@ pub(crate) enum Parcel {
     Adjacency(Vec<(u64, u64)>),
     /// (node, neighbour, neighbour's degree).
     NeighbourDegrees(Vec<(u64, u64, u32)>),
-    /// Open wedges to check: (middle of the check, far end, apex).
-    Wedges(Vec<(u64, u64, u64)>),
-    /// One triangle at each listed node.
+    /// Where nodes sit at their owners: (neighbour, node, the node's slot).
+    Slots(Vec<(u64, u64, u32)>),
+    /// Open wedges to check.
+    Wedges(Vec<Wedge>),
+    /// One triangle at each listed node (by slot at its owner).
     Corners(Vec<u64>),
-    /// Component labels offered to nodes: (node, label).
+    /// Component labels offered to nodes: (node's slot at its owner, label).
     Labels(Vec<(u64, u64)>),
     /// Members of components: (label, degree).
     Members(Vec<(u64, u32)>),
@@ -43,7 +47,7 @@ pub(crate) enum Parcel {
     Giants(Vec<(u64, u64)>),
     /// Candidate BFS sources: (hash key, id).
     Candidates(Vec<(u64, u64)>),
-    /// Search frontiers offered to nodes: (node, one bit per source of the batch).
+    /// Search frontiers offered to nodes: (node's slot at its owner, one bit per source).
     Frontier(Vec<(u64, u64)>),
     /// A worker's partial figures, for worker 0.
     Partial(Box<super::Partial>),
@@ -53,14 +57,29 @@ pub(crate) enum Parcel {
     Fault(Vec<(u32, u8, String)>),
 }
 
+/// An open wedge apex–middle, apex–far, sent to the middle's owner to check middle–far.
+#[derive(Debug, Clone, Copy, Serialize, Deserialize)]
+pub(crate) struct Wedge {
+    /// The middle end's slot at its owner (the receiver).
+    pub(crate) middle: u32,
+    /// The far end's id (looked up in the middle's list) and slot at its owner.
+    pub(crate) far: u64,
+    pub(crate) far_slot: u32,
+    /// The apex's id (for its owner) and slot there.
+    pub(crate) apex: u64,
+    pub(crate) apex_slot: u32,
+}
+
 /// One worker's end of the exchange.
 pub(crate) struct Rounds<'w> {
     worker: &'w mut Worker,
     input: InputHandle<u64, CapacityContainerBuilder<Vec<(u32, Parcel)>>>,
     probe: ProbeHandle<u64>,
     inbox: Rc<RefCell<BTreeMap<u64, Vec<Parcel>>>>,
-    /// Items handed to the engine for other workers, by round.
+    /// Items handed to the engine for other workers.
     pub(crate) sent: u64,
+    /// The same, by kind of parcel.
+    pub(crate) by_kind: Exchanged,
 }
 
 impl<'w> Rounds<'w> {
@@ -101,6 +120,7 @@ impl<'w> Rounds<'w> {
             probe,
             inbox,
             sent: 0,
+            by_kind: Exchanged::default(),
         }
     }
 
@@ -119,14 +139,28 @@ impl<'w> Rounds<'w> {
         out: Vec<Vec<T>>,
         wrap: impl Fn(Vec<T>) -> Parcel,
     ) -> Vec<Parcel> {
-        for (dest, mut items) in out.into_iter().enumerate() {
-            if dest != self.worker.index() {
-                self.sent += items.len() as u64;
+        for (dest, items) in out.into_iter().enumerate() {
+            let remote = dest != self.worker.index();
+            let count = items.len() as u64;
+            if remote {
+                self.sent += count;
             }
-            while !items.is_empty() {
-                let rest = items.split_off(items.len().min(BATCH));
-                self.input.send((dest as u32, wrap(items)));
-                items = rest;
+            let mut first = true;
+            // Each item moves once, into a batch of its own size: splitting the vector in
+            // place would copy its tail again and again, and keep its whole capacity alive in
+            // the first batch.
+            let mut rest = items.into_iter();
+            loop {
+                let batch: Vec<T> = rest.by_ref().take(BATCH).collect();
+                if batch.is_empty() {
+                    break;
+                }
+                let parcel = wrap(batch);
+                if remote && first {
+                    tally(&mut self.by_kind, &parcel, count);
+                    first = false;
+                }
+                self.input.send((dest as u32, parcel));
             }
         }
         // Fault injection for the tests of a process dying mid-run: PLUMB_SPREAD_CRASH=W:R
@@ -154,4 +188,18 @@ impl<'w> Rounds<'w> {
         });
         got.iter().any(|p| matches!(p, Parcel::More(true)))
     }
+}
+
+/// Count `items` of `p`'s kind in `by`.
+fn tally(by: &mut Exchanged, p: &Parcel, items: u64) {
+    let slot = match p {
+        Parcel::Edges(_) => &mut by.edges,
+        Parcel::Adjacency(_) => &mut by.adjacency,
+        Parcel::NeighbourDegrees(_) | Parcel::Slots(_) => &mut by.degrees,
+        Parcel::Labels(_) | Parcel::Members(_) => &mut by.labels,
+        Parcel::Wedges(_) | Parcel::Corners(_) => &mut by.wedges,
+        Parcel::Frontier(_) => &mut by.frontier,
+        _ => &mut by.other,
+    };
+    *slot += items;
 }

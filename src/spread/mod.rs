@@ -22,7 +22,7 @@ use crate::exact::clustering::ClusteringParts;
 use crate::exact::components::ComponentStats;
 use crate::exact::degrees::EndSums;
 use crate::profile::plan::{Decision, Group};
-use crate::profile::report::SpreadRun;
+use crate::profile::report::{Exchanged, SpreadRun};
 use crate::profile::{Distances, EstimatedDistances, Profile};
 use crate::read::source::Compression;
 use crate::store::intake::{BadLine, IdKind, InputFormat, Intake, Stage, StageName};
@@ -189,6 +189,7 @@ pub(crate) struct Partial {
     bfs_rounds: u64,
     distance_seconds: f64,
     exchanged: u64,
+    by_kind: Exchanged,
     label_rounds: u64,
     wedge_rounds: u64,
     read_seconds: f64,
@@ -276,6 +277,7 @@ impl Partial {
         self.bfs_rounds = self.bfs_rounds.max(o.bfs_rounds);
         self.distance_seconds = self.distance_seconds.max(o.distance_seconds);
         self.exchanged += o.exchanged;
+        self.by_kind.merge(&o.by_kind);
         // Rounds are in step on every worker; times are the slowest worker's.
         self.label_rounds = self.label_rounds.max(o.label_rounds);
         self.wedge_rounds = self.wedge_rounds.max(o.wedge_rounds);
@@ -573,6 +575,7 @@ fn assemble(
             label_rounds: all.label_rounds,
             wedge_rounds: all.wedge_rounds,
             bfs_rounds: all.bfs_rounds,
+            exchanged: all.by_kind,
         },
     }
 }

@@ -4,7 +4,7 @@
 
 use std::path::{Path, PathBuf};
 
-use super::exchange::{Parcel, Rounds};
+use super::exchange::{Parcel, Rounds, Wedge};
 use super::{ComponentTally, Partial, SpreadOptions};
 use crate::error::{Error, ErrorClass, Result};
 use crate::exact::clustering::ClusteringParts;
@@ -36,6 +36,8 @@ struct Owned {
     targets: Vec<u64>,
     /// The degree of `targets[i]`.
     target_degrees: Vec<u32>,
+    /// Where `targets[i]` sits among its owner's nodes.
+    target_slots: Vec<u32>,
 }
 
 impl Owned {
@@ -214,6 +216,7 @@ pub(crate) fn run(
         offsets: vec![0],
         targets: Vec::with_capacity(adj.len()),
         target_degrees: Vec::new(),
+        target_slots: Vec::new(),
     };
     for (i, &(a, b)) in adj.iter().enumerate() {
         if a != b {
@@ -242,7 +245,25 @@ pub(crate) fn run(
     }
     // Sorted by (node, neighbour), the messages line up with the sorted lists.
     nd.sort_unstable_by_key(|e| (e.0, e.1));
+    // Round: each node tells its neighbours' owners where it sits here, so later rounds
+    // address it by slot instead of looking its id up once per message.
+    let mut slot_out: Vec<Vec<(u64, u64, u32)>> = vec![Vec::new(); peers];
+    let mut i = 0;
+    for (k, &(v, u, _)) in nd.iter().enumerate() {
+        while owned.offsets[i + 1] <= k {
+            i += 1;
+        }
+        slot_out[owner(u, peers)].push((u, v, i as u32));
+    }
     owned.target_degrees = nd.into_iter().map(|e| e.2).collect();
+    let mut slots: Vec<(u64, u64, u32)> = Vec::new();
+    for p in x.round(slot_out, Parcel::Slots) {
+        if let Parcel::Slots(v) = p {
+            slots.extend(v);
+        }
+    }
+    slots.sort_unstable_by_key(|e| (e.0, e.1));
+    owned.target_slots = slots.into_iter().map(|e| e.2).collect();
     for i in 0..owned.nodes.len() {
         let d = owned.degree(i) as u128;
         let around: u128 = owned.target_degrees[owned.offsets[i]..owned.offsets[i + 1]]
@@ -275,6 +296,7 @@ pub(crate) fn run(
         partial.triangle_seconds = clock.elapsed().as_secs_f64();
     }
     partial.exchanged = x.sent;
+    partial.by_kind = x.by_kind;
 
     // Round: every partial to worker 0.
     let mut out: Vec<Vec<Partial>> = (0..peers).map(|_| Vec::new()).collect();
@@ -322,9 +344,10 @@ fn components(x: &mut Rounds, owned: &Owned, partial: &mut Partial) -> Vec<u64> 
             if !std::mem::take(&mut changed[i]) {
                 continue;
             }
-            for &b in owned.neighbours(i) {
+            for k in owned.offsets[i]..owned.offsets[i + 1] {
+                let b = owned.targets[k];
                 if label[i] < b {
-                    out[owner(b, peers)].push((b, label[i]));
+                    out[owner(b, peers)].push((owned.target_slots[k] as u64, label[i]));
                     any = true;
                 }
             }
@@ -335,10 +358,9 @@ fn components(x: &mut Rounds, owned: &Owned, partial: &mut Partial) -> Vec<u64> 
         partial.label_rounds += 1;
         for p in x.round(out, Parcel::Labels) {
             if let Parcel::Labels(v) = p {
-                for (b, l) in v {
-                    if let Some(i) = owned.index_of(b)
-                        && l < label[i]
-                    {
+                for (slot, l) in v {
+                    let i = slot as usize;
+                    if l < label[i] {
                         label[i] = l;
                         changed[i] = true;
                     }
@@ -436,18 +458,18 @@ fn distances(
             for (i, f) in frontier.iter_mut().enumerate() {
                 let f = std::mem::take(f);
                 if f != 0 {
-                    for &v in owned.neighbours(i) {
-                        out[owner(v, peers)].push((v, f));
+                    for k in owned.offsets[i]..owned.offsets[i + 1] {
+                        let v = owned.targets[k];
+                        out[owner(v, peers)].push((owned.target_slots[k] as u64, f));
                     }
                 }
             }
             let mut next: Vec<u64> = vec![0; n];
             for p in x.round(out, Parcel::Frontier) {
                 if let Parcel::Frontier(v) = p {
-                    for (v, f) in v {
-                        if let Some(i) = owned.index_of(v) {
-                            next[i] |= f & !seen[i];
-                        }
+                    for (slot, f) in v {
+                        let i = slot as usize;
+                        next[i] |= f & !seen[i];
                     }
                 }
             }
@@ -490,9 +512,10 @@ fn triangles(x: &mut Rounds, owned: &Owned, partial: &mut Partial) {
     let mut corners: Vec<u64> = vec![0; n];
     let key = |d: u32, id: u64| (d, id);
     let mut next = 0usize;
-    let mut out_list: Vec<(u32, u64)> = Vec::new();
+    // (degree, id, slot at the owner) of a node's out-neighbours.
+    let mut out_list: Vec<(u32, u64, u32)> = Vec::new();
     loop {
-        let mut out: Vec<Vec<(u64, u64, u64)>> = vec![Vec::new(); peers];
+        let mut out: Vec<Vec<Wedge>> = vec![Vec::new(); peers];
         let mut sent = 0usize;
         while next < n && sent < WEDGES_PER_ROUND {
             let (a, da) = (owned.nodes[next], owned.degree(next));
@@ -501,13 +524,19 @@ fn triangles(x: &mut Rounds, owned: &Owned, partial: &mut Partial) {
             for k in s..e {
                 let (b, db) = (owned.targets[k], owned.target_degrees[k]);
                 if key(db, b) > key(da, a) {
-                    out_list.push(key(db, b));
+                    out_list.push((db, b, owned.target_slots[k]));
                 }
             }
             out_list.sort_unstable();
-            for (i, &(_, b)) in out_list.iter().enumerate() {
-                for &(_, c) in &out_list[i + 1..] {
-                    out[owner(b, peers)].push((b, c, a));
+            for (i, &(_, b, sb)) in out_list.iter().enumerate() {
+                for &(_, c, sc) in &out_list[i + 1..] {
+                    out[owner(b, peers)].push(Wedge {
+                        middle: sb,
+                        far: c,
+                        far_slot: sc,
+                        apex: a,
+                        apex_slot: next as u32,
+                    });
                 }
             }
             sent += out_list.len() * out_list.len().saturating_sub(1) / 2;
@@ -517,23 +546,20 @@ fn triangles(x: &mut Rounds, owned: &Owned, partial: &mut Partial) {
         let mut credit: Vec<Vec<u64>> = vec![Vec::new(); peers];
         for p in x.round(out, Parcel::Wedges) {
             if let Parcel::Wedges(v) = p {
-                for (b, c, a) in v {
-                    if let Some(i) = owned.index_of(b)
-                        && owned.neighbours(i).binary_search(&c).is_ok()
-                    {
+                for w in v {
+                    let i = w.middle as usize;
+                    if owned.neighbours(i).binary_search(&w.far).is_ok() {
                         corners[i] += 1;
-                        credit[owner(a, peers)].push(a);
-                        credit[owner(c, peers)].push(c);
+                        credit[owner(w.apex, peers)].push(w.apex_slot as u64);
+                        credit[owner(w.far, peers)].push(w.far_slot as u64);
                     }
                 }
             }
         }
         for p in x.round(credit, Parcel::Corners) {
             if let Parcel::Corners(v) = p {
-                for a in v {
-                    if let Some(i) = owned.index_of(a) {
-                        corners[i] += 1;
-                    }
+                for slot in v {
+                    corners[slot as usize] += 1;
                 }
             }
         }
