@@ -141,11 +141,12 @@ fn main() {
         ]);
         let doc: Value = serde_json::from_slice(&std::fs::read(&json).unwrap()).unwrap();
         println!(
-            "  spread, {p} process{}      {t:7.2} s   peak {peak:7.0} MiB (largest process) · {} items exchanged · {} label rounds · {} wedge rounds",
+            "  spread, {p} process{}      {t:7.2} s   peak {peak:7.0} MiB (largest process) · {} items exchanged · {} label rounds · {} wedge rounds · {} BFS rounds",
             if p == "1" { " " } else { "es" },
             doc["spread"]["exchanged_items"],
             doc["spread"]["label_rounds"],
             doc["spread"]["wedge_rounds"],
+            doc["spread"]["bfs_rounds"],
         );
         println!("      stages: {}", stages(&json));
         println!("      exchanged by kind: {}", doc["spread"]["exchanged"]);
