@@ -191,8 +191,22 @@ impl Components {
         for &(_, c) in &self.sizes {
             *hist.entry(c).or_insert(0u64) += 1;
         }
+        ComponentStats::from_sizes(n, hist.into_iter().collect(), giant_nodes, giant_edges)
+    }
+}
+
+impl ComponentStats {
+    /// The figures from the size histogram (`(size, components of that size)`, ascending) and
+    /// the giant component's nodes and edges, among `n` nodes; shared with the distributed
+    /// profile.
+    pub(crate) fn from_sizes(
+        n: u64,
+        size_histogram: Vec<(u64, u64)>,
+        giant_nodes: u64,
+        giant_edges: u64,
+    ) -> Self {
         ComponentStats {
-            count: self.sizes.len() as u64,
+            count: size_histogram.iter().map(|s| s.1).sum(),
             giant_nodes,
             giant_edges,
             giant_fraction: if n == 0 {
@@ -200,8 +214,8 @@ impl Components {
             } else {
                 giant_nodes as f64 / n as f64
             },
-            singletons: hist.get(&1).copied().unwrap_or(0),
-            size_histogram: hist.into_iter().collect(),
+            singletons: size_histogram.iter().find(|s| s.0 == 1).map_or(0, |s| s.1),
+            size_histogram,
         }
     }
 }

@@ -216,9 +216,8 @@ fn read_rows(i: &crate::store::intake::Intake, command: &str) -> String {
     out
 }
 
-/// The graph built: size, degrees, the store's footprint and the stage timings.
-fn graph_rows(out: &mut String, g: &Graph) {
-    let i = &g.intake;
+/// Nodes, edges and isolated nodes, from what reading found.
+fn graph_row(out: &mut String, i: &crate::store::intake::Intake) {
     row(
         out,
         "graph",
@@ -229,6 +228,12 @@ fn graph_rows(out: &mut String, g: &Graph) {
             count(i.isolated_nodes)
         ),
     );
+}
+
+/// The graph built: size, degrees, the store's footprint and the stage timings.
+fn graph_rows(out: &mut String, g: &Graph) {
+    let i = &g.intake;
+    graph_row(out, i);
     let d = g.degree_summary();
     row(
         out,
@@ -343,16 +348,7 @@ pub fn profile_text(g: &Graph, p: &Profile, per_node: Option<&std::path::Path>) 
 /// A distributed profile as text: what was read, how the run went, then the figure groups.
 pub fn spread_text(p: &Profile, run: &crate::profile::report::SpreadRun) -> String {
     let mut out = read_rows(&p.intake, "spread");
-    row(
-        &mut out,
-        "graph",
-        format!(
-            "{} nodes · {} edges · {} isolated nodes",
-            count(p.intake.nodes),
-            count(p.intake.edges),
-            count(p.intake.isolated_nodes)
-        ),
-    );
+    graph_row(&mut out, &p.intake);
     row(
         &mut out,
         "run",

@@ -99,7 +99,6 @@ impl Peers {
 /// Component sizes as one worker saw them (of the components whose label it owns).
 #[derive(Debug, Clone, Default, Serialize, Deserialize)]
 pub(crate) struct ComponentTally {
-    count: u64,
     /// (size, number of components of that size), ascending.
     sizes: Vec<(u64, u64)>,
     /// The largest component: (size, label, edges); the smallest label on a tie.
@@ -108,7 +107,6 @@ pub(crate) struct ComponentTally {
 
 impl ComponentTally {
     fn add(&mut self, label: u64, size: u64, edges: u64) {
-        self.count += 1;
         match self.sizes.binary_search_by_key(&size, |s| s.0) {
             Ok(i) => self.sizes[i].1 += 1,
             Err(i) => self.sizes.insert(i, (size, 1)),
@@ -128,7 +126,6 @@ impl ComponentTally {
     }
 
     fn merge(&mut self, o: ComponentTally) {
-        self.count += o.count;
         for (size, k) in o.sizes {
             match self.sizes.binary_search_by_key(&size, |s| s.0) {
                 Ok(i) => self.sizes[i].1 += k,
@@ -140,18 +137,7 @@ impl ComponentTally {
 
     fn stats(&self, n: u64) -> ComponentStats {
         let (giant_nodes, _, giant_edges) = self.giant.unwrap_or((0, 0, 0));
-        ComponentStats {
-            count: self.count,
-            giant_nodes,
-            giant_edges,
-            giant_fraction: if n == 0 {
-                0.0
-            } else {
-                giant_nodes as f64 / n as f64
-            },
-            singletons: self.sizes.iter().find(|s| s.0 == 1).map_or(0, |s| s.1),
-            size_histogram: self.sizes.clone(),
-        }
+        ComponentStats::from_sizes(n, self.sizes.clone(), giant_nodes, giant_edges)
     }
 }
 
@@ -159,6 +145,8 @@ impl ComponentTally {
 #[derive(Debug, Clone, Default, Serialize, Deserialize)]
 pub(crate) struct Partial {
     parts: u64,
+    /// The first part's compression (the report's, as for part files on one machine).
+    compression: Option<Compression>,
     input_bytes: u64,
     text_bytes: u64,
     lines: u64,
@@ -201,6 +189,7 @@ pub(crate) struct Partial {
 impl Partial {
     fn add_intake(&mut self, i: &Intake, mine: &[PathBuf]) {
         self.parts += mine.len() as u64;
+        self.compression = self.compression.or(Some(i.compression));
         self.input_bytes += i.input_bytes;
         self.text_bytes += i.text_bytes;
         self.lines += i.lines;
@@ -225,6 +214,7 @@ impl Partial {
 
     fn merge(&mut self, o: Partial) {
         self.parts += o.parts;
+        self.compression = self.compression.or(o.compression);
         self.input_bytes += o.input_bytes;
         self.text_bytes += o.text_bytes;
         self.lines += o.lines;
@@ -444,7 +434,7 @@ fn assemble(
         source: input.display().to_string(),
         packed_from: None,
         format: InputFormat::EdgeList,
-        compression: Compression::None,
+        compression: all.compression.unwrap_or(Compression::None),
         parts: (parts > 1).then_some(parts),
         frames: None,
         input_bytes: all.input_bytes,
