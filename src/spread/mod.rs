@@ -153,15 +153,14 @@ pub(crate) struct Partial {
     blank_lines: u64,
     comment_lines: u64,
     header_lines: u64,
-    /// The header of the earliest part that had one: (part index, header).
-    header: Option<(u64, String)>,
+    /// A header line skipped (the first worker's that had one).
+    header: Option<String>,
     edge_lines: u64,
     extra_column_lines: u64,
     self_loops: u64,
     malformed_skipped: u64,
-    malformed_examples: Vec<(u64, BadLine)>,
-    /// Index of this worker's first part: orders the examples.
-    first_part: u64,
+    /// Skipped lines, each naming its part (ordered by part and line when merged).
+    malformed_examples: Vec<BadLine>,
     nodes: u64,
     edges: u64,
     directed_pairs: u64,
@@ -197,7 +196,7 @@ impl Partial {
         self.comment_lines += i.comment_lines;
         self.header_lines += i.header_lines.unwrap_or(u64::from(i.header_line.is_some()));
         if let Some(h) = &i.header_line {
-            self.header = Some((0, h.clone()));
+            self.header = Some(h.clone());
         }
         self.edge_lines += i.edge_lines;
         self.extra_column_lines += i.extra_column_lines;
@@ -208,7 +207,7 @@ impl Partial {
             if b.part.is_none() {
                 b.part = mine.first().map(|p| p.display().to_string());
             }
-            self.malformed_examples.push((0, b));
+            self.malformed_examples.push(b);
         }
     }
 
@@ -352,12 +351,19 @@ pub fn profile(
         parts.clone(),
         want.clone(),
     );
-    let guards = without_stdout(|| {
+    let cluster = peers.addresses.len() > 1;
+    let start = move || {
         timely::execute(config, move |worker| {
             let mut rounds = exchange::Rounds::new(worker);
             work::run(&mut rounds, &shown, &parts2, &load2, &want2)
         })
-    })
+    };
+    // Only a cluster connects (and prints while it does); a single process leaves stdout be.
+    let guards = if cluster {
+        without_stdout(start)
+    } else {
+        start()
+    }
     .map_err(|problem| Error::Parameters {
         problem: format!("the dataflow engine did not start: {problem}"),
     })?;
@@ -428,7 +434,7 @@ fn assemble(
     let m = all.edges;
     let loopless = all.edge_lines - all.self_loops;
     all.malformed_examples
-        .sort_by(|a, b| (&a.1.part, a.1.line).cmp(&(&b.1.part, b.1.line)));
+        .sort_by(|a, b| (&a.part, a.line).cmp(&(&b.part, b.line)));
     let isolated = all.histogram.first().copied().unwrap_or(0);
     let intake = Intake {
         source: input.display().to_string(),
@@ -442,7 +448,7 @@ fn assemble(
         lines: all.lines,
         blank_lines: all.blank_lines,
         comment_lines: all.comment_lines,
-        header_line: all.header.map(|h| h.1),
+        header_line: all.header,
         header_lines: (parts > 1).then_some(all.header_lines),
         id_columns: None,
         edge_lines: all.edge_lines,
@@ -455,7 +461,6 @@ fn assemble(
         malformed_examples: all
             .malformed_examples
             .into_iter()
-            .map(|b| b.1)
             .take(crate::read::scan::EXAMPLES)
             .collect(),
         nodes: n,
