@@ -3,7 +3,8 @@
 //! 5 million). Each run is the `plumb` program as a user runs it, timed end to end, with the
 //! peak resident set of its largest process (from wait4: the process and the processes it
 //! started and waited for). Answers are checked: every exact figure of each distributed run
-//! equals the single-machine profile's.
+//! equals the single-machine profile's; the sampled run's transitivity lies near the exact one
+//! and its HyperBall mean distance's interval overlaps the sampled sources'.
 //!
 //! Run: `cargo bench --bench spread` (`-- --quick` for the small graph).
 
@@ -157,4 +158,54 @@ fn main() {
         );
     }
     println!("  every exact figure equal across the three runs");
+
+    // The estimated figures, distributed: wedge- and node-sampled clustering, HyperBall on the
+    // giant component (2 hash seeds, the fewest its interval allows), the small-world figures.
+    let json = tmp.path().join("spread-sampled.json");
+    let (t, peak) = run(&[
+        "spread",
+        d_str,
+        "--local",
+        "2",
+        "--sampled-clustering",
+        "--hyperball",
+        "--ball-runs",
+        "2",
+        "--json",
+        json.to_str().unwrap(),
+    ]);
+    let doc: Value = serde_json::from_slice(&std::fs::read(&json).unwrap()).unwrap();
+    let one: Value = serde_json::from_slice(&std::fs::read(&single).unwrap()).unwrap();
+    println!(
+        "  spread, 2 processes, sampled clustering and HyperBall {t:7.2} s   peak {peak:7.0} MiB · {} items exchanged · {} HyperBall rounds",
+        doc["spread"]["exchanged_items"], doc["spread"]["ball_rounds"],
+    );
+    println!("      stages: {}", stages(&json));
+    println!("      exchanged by kind: {}", doc["spread"]["exchanged"]);
+    let (got, exact) = (
+        &doc["profile"]["clustering"]["transitivity"],
+        one["profile"]["clustering"]["transitivity"]["value"]
+            .as_f64()
+            .unwrap(),
+    );
+    let (lo, hi) = (
+        got["interval"]["low"].as_f64().unwrap(),
+        got["interval"]["high"].as_f64().unwrap(),
+    );
+    println!("      transitivity {got} against exact {exact}");
+    // One seed's interval misses at the 5% rate; beyond twice its half-width is a fault.
+    assert!((got["value"].as_f64().unwrap() - exact).abs() <= hi - lo);
+    let (a, b) = (
+        &doc["profile"]["distances"]["mean"],
+        &one["profile"]["distances"]["mean"],
+    );
+    println!("      mean distance {a} against sampled sources {b}");
+    assert!(
+        a["interval"]["low"].as_f64() <= b["interval"]["high"].as_f64()
+            && b["interval"]["low"].as_f64() <= a["interval"]["high"].as_f64(),
+        "the HyperBall and sampled-source intervals do not overlap"
+    );
+    let sigma = &doc["profile"]["small_world"]["coefficients"][0]["sigma"];
+    println!("      sigma {sigma}");
+    assert!(sigma["value"].as_f64().unwrap() > 0.0);
 }

@@ -10,7 +10,7 @@ use std::path::Path;
 
 use common::{gzip, plumb, zstd};
 use plumb::progress::Quiet;
-use plumb::spread::{Peers, SpreadOptions};
+use plumb::spread::{Peers, SpreadClustering, SpreadDistances, SpreadOptions};
 use plumb::store::load::LoadOptions;
 use rand::{RngExt, SeedableRng};
 use serde_json::Value;
@@ -161,6 +161,121 @@ fn one_two_and_four_processes_agree_with_the_single_machine_profile() {
     assert_eq!(exact_part(&doc), want);
 }
 
+/// The sampled figures (wedge and node sampling, HyperBall) and the small-world comparison:
+/// the same on 1 and 2 processes for one seed; each interval covers the single machine's exact
+/// figure (checked against NetworkX elsewhere); the analytic references, which depend on exact
+/// counts only, equal the single machine's to the last digit.
+#[test]
+fn sampled_figures_and_the_small_world_comparison_agree_with_the_single_machine() {
+    let tmp = tempfile::tempdir().unwrap();
+    let dir = tmp.path().join("dump");
+    write_parts(&dir, 12);
+    let single = tmp.path().join("single.json");
+    let out = plumb(&[
+        "profile",
+        dir.to_str().unwrap(),
+        "--clustering",
+        "exact",
+        "--distances",
+        "exact",
+        "--reference-graphs",
+        "0",
+        "--json",
+        single.to_str().unwrap(),
+    ]);
+    assert!(
+        out.status.success(),
+        "{}",
+        String::from_utf8_lossy(&out.stderr)
+    );
+    let single = read_json(&single)["profile"].clone();
+    let mut first: Option<Value> = None;
+    for p in ["1", "2"] {
+        let json = tmp.path().join(format!("sampled-{p}.json"));
+        let out = plumb(&[
+            "spread",
+            dir.to_str().unwrap(),
+            "--local",
+            p,
+            "--sampled-clustering",
+            "--hyperball",
+            "--json",
+            json.to_str().unwrap(),
+        ]);
+        assert!(
+            out.status.success(),
+            "{}",
+            String::from_utf8_lossy(&out.stderr)
+        );
+        let doc = read_json(&json);
+        common::assert_valid_profile(&doc);
+        let got = &doc["profile"];
+        let estimated =
+            serde_json::json!([got["clustering"], got["distances"], got["small_world"]]);
+        match &first {
+            None => first = Some(estimated),
+            Some(f) => assert_eq!(&estimated, f, "{p} processes"),
+        }
+        let covers = |path: &[&str]| {
+            let (mut a, mut b) = (got, &single);
+            for k in path {
+                a = &a[*k];
+                b = &b[*k];
+            }
+            let (iv, truth) = (&a["interval"], b["value"].as_f64().unwrap());
+            assert!(
+                iv["low"].as_f64().unwrap() <= truth && truth <= iv["high"].as_f64().unwrap(),
+                "{path:?}: {iv} misses {truth}"
+            );
+        };
+        covers(&["clustering", "transitivity"]);
+        covers(&["clustering", "triangles"]);
+        covers(&["clustering", "average_zeros"]);
+        covers(&["distances", "mean"]);
+        assert_eq!(got["distances"]["registers"], 64);
+        for (a, b) in got["clustering"]["by_degree"]
+            .as_array()
+            .unwrap()
+            .iter()
+            .zip(single["clustering"]["by_degree"].as_array().unwrap())
+        {
+            assert_eq!(
+                (&a["low"], &a["high"], &a["nodes"]),
+                (&b["low"], &b["high"], &b["nodes"])
+            );
+        }
+        let analytic = |sw: &Value| -> Vec<Value> {
+            sw["references"]
+                .as_array()
+                .unwrap()
+                .iter()
+                .filter(|r| r["name"].as_str().unwrap().contains("analytic"))
+                .cloned()
+                .collect()
+        };
+        assert_eq!(analytic(&got["small_world"]).len(), 3);
+        assert_eq!(
+            analytic(&got["small_world"]),
+            analytic(&single["small_world"])
+        );
+        let (sig, exact_sig) = (
+            &got["small_world"]["coefficients"][0]["sigma"],
+            &single["small_world"]["coefficients"][0]["sigma"],
+        );
+        // One seed's interval misses at the 5% rate (the coverage test below counts them); a
+        // miss by more than twice the half-width would be a fault (common practice, no source).
+        let truth = exact_sig["value"].as_f64().unwrap();
+        let (lo, hi) = (
+            sig["interval"]["low"].as_f64().unwrap(),
+            sig["interval"]["high"].as_f64().unwrap(),
+        );
+        assert!(
+            (sig["value"].as_f64().unwrap() - truth).abs() <= hi - lo,
+            "sigma {sig} is far from {truth}"
+        );
+    }
+}
+
 #[test]
 fn the_karate_club_in_parts_gives_the_published_figures() {
     // Zachary (1977); 45 triangles, transitivity 0.255682, average clustering 0.570638
@@ -292,8 +407,9 @@ fn distance_intervals_cover_the_exact_mean_at_the_nominal_rate() {
     let mut covered = 0;
     for seed in 0..60 {
         let o = SpreadOptions {
-            clustering: false,
-            sources: 24,
+            clustering: SpreadClustering::Off,
+            distances: SpreadDistances::Sources(24),
+            small_world: false,
             seed,
             ..SpreadOptions::default()
         };
@@ -307,4 +423,90 @@ fn distance_intervals_cover_the_exact_mean_at_the_nominal_rate() {
         covered += usize::from(iv.low <= truth && truth <= iv.high);
     }
     assert!(covered >= 51, "covered {covered} of 60");
+}
+
+/// Over 60 seeds on a small-world graph, the 95% intervals of the distributed wedge-sampled
+/// transitivity, node-sampled average clustering, HyperBall mean distance and the sigma they
+/// give each cover the exact figure at about the nominal rate (Wilson intervals, Seshadhri,
+/// Pinar & Kolda 2013; HyperBall's jackknife over hash seeds, Boldi, Rosa & Vigna 2011; sigma
+/// against the analytic Erdős–Rényi reference, Humphries & Gurney 2008). The bound, 51 of 60, is
+/// the one above (binomial tail, common practice).
+#[test]
+fn sampled_clustering_and_hyperball_cover_at_the_nominal_rate() {
+    let tmp = tempfile::tempdir().unwrap();
+    let dir = tmp.path().join("ws");
+    std::fs::create_dir(&dir).unwrap();
+    let model = plumb::models::generate::Model::WattsStrogatz {
+        n: 400,
+        k: 6,
+        p: 0.1,
+    };
+    let mut lines = Vec::new();
+    plumb::models::generate::stream(&model, 5, &mut |a, b| lines.push(format!("{a} {b}"))).unwrap();
+    for (k, chunk) in lines.chunks(500).enumerate() {
+        std::fs::write(dir.join(format!("p{k}.txt")), chunk.join("\n")).unwrap();
+    }
+    let g = plumb::store::load::load(&dir, &LoadOptions::default(), &Quiet).unwrap();
+    let opts = plumb::profile::ProfileOptions {
+        distances: plumb::profile::Choice::Exact,
+        clustering: plumb::profile::Choice::Exact,
+        groups: plumb::profile::Groups {
+            clustering: true,
+            distances: true,
+            small_world: true,
+        },
+        reference_graphs: Some(0),
+        ..Default::default()
+    };
+    let (p, _) = plumb::profile::profile(&g, &opts, &Quiet);
+    let sigma =
+        |sw: &plumb::models::smallworld::SmallWorld| sw.coefficients[0].sigma.clone().unwrap();
+    let plumb::profile::Distances::Exact(exact) = &p.distances else {
+        panic!("exact distances expected")
+    };
+    let c = p.clustering.unwrap();
+    let truth = [
+        c.transitivity.value(),
+        c.average_zeros.value(),
+        exact.mean.value(),
+        sigma(p.small_world.as_ref().unwrap()).value(),
+    ];
+    // A wide margin keeps each run to about 740 wedges, so the test is quick.
+    let margin = plumb::profile::Margin::absolute(0.05);
+    let mut covered = [0; 4];
+    for seed in 0..60 {
+        let o = SpreadOptions {
+            clustering: SpreadClustering::Sampled {
+                margin,
+                bin_margin: margin,
+            },
+            distances: SpreadDistances::Ball(plumb::estimate::hyperball::BallOptions {
+                log2_registers: 5,
+                ..Default::default()
+            }),
+            small_world: true,
+            seed,
+            ..SpreadOptions::default()
+        };
+        let got = plumb::spread::profile(&dir, &Peers::alone(2), &LoadOptions::default(), &o)
+            .unwrap()
+            .unwrap();
+        let s = sigma(got.profile.small_world.as_ref().unwrap());
+        let k = got.profile.clustering.unwrap();
+        let plumb::profile::Distances::Estimated(e) = &got.profile.distances else {
+            panic!("estimated distances expected")
+        };
+        for (i, f) in [&k.transitivity, &k.average_zeros, &e.mean, &s]
+            .iter()
+            .enumerate()
+        {
+            let iv = f.interval().unwrap();
+            covered[i] += usize::from(iv.low <= truth[i] && truth[i] <= iv.high);
+        }
+    }
+    eprintln!("covered {covered:?} of 60");
+    assert!(
+        covered.iter().all(|&c| c >= 51),
+        "covered {covered:?} of 60"
+    );
 }

@@ -116,12 +116,38 @@ pub(crate) enum Command {
         #[arg(long, value_name = "W", default_value_t = 1)]
         workers: usize,
         /// Leave out triangles and clustering.
-        #[arg(long)]
+        #[arg(long, conflicts_with = "sampled_clustering")]
         no_clustering: bool,
+        /// Sample wedges and nodes for transitivity, average clustering and C(k), with
+        /// intervals, instead of counting every triangle.
+        #[arg(long)]
+        sampled_clustering: bool,
+        /// Half-width of the sampled transitivity and average-clustering intervals.
+        #[arg(long, value_name = "PLUS_MINUS", default_value = "0.002",
+              value_parser = plumb::profile::settings::parse_fraction)]
+        clustering_margin: f64,
+        /// The same half-width relative to the figure (5% or 0.05); the narrower applies.
+        #[arg(long, value_name = "FRACTION", default_value = "5%",
+              value_parser = plumb::profile::settings::parse_fraction)]
+        clustering_relative: f64,
         /// BFS sources sampled in the giant component for the distance figures; 0 leaves
         /// distances out.
         #[arg(long, value_name = "K", default_value_t = 256)]
         sources: usize,
+        /// Estimate distances by HyperBall on the giant component instead of sampled sources.
+        #[arg(long, conflicts_with = "sources")]
+        hyperball: bool,
+        /// HyperBall registers per node (a power of two, 16 to 65536).
+        #[arg(long, value_name = "N", default_value_t = 64,
+              value_parser = plumb::profile::settings::parse_registers)]
+        ball_registers: u32,
+        /// HyperBall runs with independent hash seeds (their spread gives the intervals).
+        #[arg(long, value_name = "N", default_value_t = 5,
+              value_parser = clap::value_parser!(u32).range(2..))]
+        ball_runs: u32,
+        /// Leave out the small-world coefficients against the analytic references.
+        #[arg(long)]
+        no_small_world: bool,
         /// Confidence level of the intervals (0.95 or 95%).
         #[arg(long, value_name = "LEVEL", default_value_t = 0.95,
               value_parser = plumb::profile::settings::parse_fraction)]

@@ -138,18 +138,54 @@ pub(crate) fn run(args: Args) -> Result<ExitCode, Error> {
             rank,
             workers,
             no_clustering,
+            sampled_clustering,
+            clustering_margin,
+            clustering_relative,
             sources,
+            hyperball,
+            ball_registers,
+            ball_runs,
+            no_small_world,
             level,
             seed,
         } => {
+            use plumb::spread::{SpreadClustering, SpreadDistances};
+            let defaults = plumb::profile::ProfileOptions::default();
+            let clustering = if no_clustering {
+                SpreadClustering::Off
+            } else if sampled_clustering {
+                SpreadClustering::Sampled {
+                    margin: plumb::profile::Margin {
+                        absolute: clustering_margin,
+                        relative: clustering_relative,
+                        ..defaults.clustering_margin
+                    },
+                    bin_margin: defaults.bin_margin,
+                }
+            } else {
+                SpreadClustering::Exact
+            };
+            let distances = if hyperball {
+                SpreadDistances::Ball(plumb::estimate::hyperball::BallOptions {
+                    log2_registers: ball_registers.trailing_zeros() as u8,
+                    repeats: ball_runs,
+                    level,
+                    seed,
+                })
+            } else if sources > 0 {
+                SpreadDistances::Sources(sources)
+            } else {
+                SpreadDistances::Off
+            };
             let how = spread::How {
                 local,
                 peers,
                 rank,
                 workers,
                 want: plumb::spread::SpreadOptions {
-                    clustering: !no_clustering,
-                    sources,
+                    clustering,
+                    distances,
+                    small_world: !no_small_world,
                     level,
                     seed,
                 },

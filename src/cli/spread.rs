@@ -69,9 +69,9 @@ fn one_process(
     let sum = report::checksum(&input.input)?;
     let opts = plumb::profile::ProfileOptions {
         groups: plumb::profile::Groups {
-            clustering: how.want.clustering,
-            distances: how.want.sources > 0,
-            small_world: false,
+            clustering: how.want.clustering != plumb::spread::SpreadClustering::Off,
+            distances: how.want.distances != plumb::spread::SpreadDistances::Off,
+            small_world: how.want.small_world,
         },
         level: how.want.level,
         seed: how.want.seed,

@@ -229,14 +229,20 @@ pub fn estimate(
         )));
     }
     let runs: Vec<Vec<f64>> = (0..opts.repeats as u64)
-        .map(|i| {
-            let seed = opts
-                .seed
-                .wrapping_mul(0x9E37_79B9_7F4A_7C15)
-                .wrapping_add(i.wrapping_mul(0xD1B5_4A32_D192_ED03));
-            neighbourhood_function(g, opts.log2_registers, seed, round_done)
-        })
+        .map(|i| neighbourhood_function(g, opts.log2_registers, run_seed(opts.seed, i), round_done))
         .collect::<Result<_, _>>()?;
+    Ok(from_runs(runs, opts))
+}
+
+/// The hash seed of run `i` of a HyperBall estimate seeded with `seed`.
+pub(crate) fn run_seed(seed: u64, i: u64) -> u64 {
+    seed.wrapping_mul(0x9E37_79B9_7F4A_7C15)
+        .wrapping_add(i.wrapping_mul(0xD1B5_4A32_D192_ED03))
+}
+
+/// The estimate from the neighbourhood functions of independent runs (one per hash seed):
+/// figures from their average, jackknife t intervals over the runs.
+pub(crate) fn from_runs(runs: Vec<Vec<f64>>, opts: &BallOptions) -> BallEstimate {
     // The figures are ratios of sums of N(t), so each run's figure carries an O(1/registers)
     // bias; deriving them from the runs' average N(t) divides that bias by the run count, and
     // the jackknife over runs gives the standard error of exactly that estimator.
@@ -276,7 +282,7 @@ pub fn estimate(
             )
         })
         .collect();
-    Ok(BallEstimate {
+    BallEstimate {
         mean: fig(full.mean, &|x| x.mean, 0.0, f64::INFINITY),
         effective_diameter: fig(
             full.effective_diameter,
@@ -294,7 +300,7 @@ pub fn estimate(
         runs,
         registers,
         counter_rse: counter_rse(registers as usize),
-    })
+    }
 }
 
 /// A figure with its jackknife standard error from the `r` leave-one-out values (Efron & Stein,

@@ -134,7 +134,7 @@ fn closes_group(
 
 /// Two distinct uniform positions below `d` (at least 2).
 #[inline]
-fn pair_below(rng: &mut ChaCha8Rng, d: u32) -> (u32, u32) {
+pub(crate) fn pair_below(rng: &mut ChaCha8Rng, d: u32) -> (u32, u32) {
     let i = rng.random_range(0..d);
     let mut j = rng.random_range(0..d - 1);
     if j >= i {
@@ -246,7 +246,13 @@ fn sample_to(
 }
 
 /// A sampled proportion as a figure (Wilson interval), and the same figure scaled by `scale`.
-fn proportion(closed: u64, samples: u64, level: f64, name: &str, scale: f64) -> (Figure, Figure) {
+pub(crate) fn proportion(
+    closed: u64,
+    samples: u64,
+    level: f64,
+    name: &str,
+    scale: f64,
+) -> (Figure, Figure) {
     let p = if samples == 0 {
         0.0
     } else {

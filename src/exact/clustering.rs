@@ -139,6 +139,27 @@ impl ClusteringParts {
         }
     }
 
+    /// Transitivity and average local clustering (degree < 2 counted as 0) of the nodes added,
+    /// `closed` their summed triangle corners: the giant component's, for the small-world
+    /// comparison (a component's triangles never leave it).
+    pub(crate) fn giant_figures(&self, closed: u64) -> (Figure, Figure) {
+        const ALG: &str = "forward triangle listing, on the giant component";
+        let tr = if self.wedges == 0 {
+            0.0
+        } else {
+            closed as f64 / self.wedges as f64
+        };
+        let avg = if self.nodes == 0 {
+            0.0
+        } else {
+            self.sum.value() / self.nodes as f64
+        };
+        (
+            Figure::exact(tr, ALG),
+            Figure::exact_over(avg, ALG, self.nodes),
+        )
+    }
+
     /// The figures, with `triangles` the graph's triangle count.
     pub(crate) fn finish(&self, triangles: u64) -> ClusteringStats {
         const ALG: &str = "forward triangle listing (Schank & Wagner 2005)";

@@ -10,9 +10,9 @@
 //!   ΔL = (L − L_r)/(L_l − L_r), each clipped to [0, 1] (Muldoon, Bridgeford & Bassett, "Small-
 //!   world propensity and weighted brain networks", Sci. Rep. 6, 22057, 2016).
 //!
-//! Intervals propagate every input's sampling error (its standard error, normal) through the
-//! formula by seeded Monte Carlo draws (a parametric bootstrap), which handles the clipping in
-//! phi that the delta method cannot. Inputs that are exact or analytic carry no error.
+//! Intervals propagate every input's sampling error (its standard error, normal, or the spread
+//! its own interval states when that is wider) through the formula by seeded Monte Carlo draws
+//! (a parametric bootstrap), which handles the clipping in phi that the delta method cannot. Inputs that are exact or analytic carry no error.
 
 use rand::{RngExt, SeedableRng};
 use rand_chacha::ChaCha8Rng;
@@ -245,9 +245,16 @@ struct Input {
 }
 
 fn ve(f: &Figure, graphs: Option<u64>) -> Input {
+    let se = f.std_error().unwrap_or(0.0);
+    // An input whose own interval is wider than a normal one of its standard error (a t
+    // interval over a few HyperBall runs) is drawn with the spread its interval states, so the
+    // coefficient is not more certain than its inputs are.
+    let stated = f.interval().map_or(0.0, |iv| {
+        (iv.high - iv.low) / (2.0 * crate::estimate::interval::z_for(iv.level))
+    });
     Input {
         value: f.value(),
-        se: f.std_error().unwrap_or(0.0),
+        se: if graphs.is_some() { se } else { se.max(stated) },
         df: graphs.filter(|&g| g > 1).map(|g| g - 1),
     }
 }

@@ -363,19 +363,26 @@ pub fn spread_text(p: &Profile, run: &crate::profile::report::SpreadRun) -> Stri
             } else {
                 String::new()
             }
-        ),
+        ) + &if run.ball_rounds > 0 {
+            format!(" · HyperBall in {} rounds", count(run.ball_rounds))
+        } else {
+            String::new()
+        },
     );
     size_text(&mut out, p);
     if let Some(k) = &p.clustering {
         clustering_text(&mut out, k);
     }
     distance_text(&mut out, p);
+    if let Some(sw) = &p.small_world {
+        small_world_text(&mut out, sw);
+    }
     section(&mut out, "not distributed yet");
     row(
         &mut out,
         "left out",
-        "the exact diameter, HyperBall and the small-world comparison: profile a store of the \
-         graph on one machine for them",
+        "the exact diameter and the sampled reference graphs: profile a store of the graph on \
+         one machine for them",
     );
     let times: Vec<String> = p
         .stages

@@ -104,6 +104,9 @@ pub struct SpreadRun {
     /// Frontier rounds of the sampled-source searches (one per level of each batch).
     #[serde(default)]
     pub bfs_rounds: u64,
+    /// HyperBall rounds over all its runs (one per step of each).
+    #[serde(default)]
+    pub ball_rounds: u64,
     /// The items exchanged, by kind.
     #[serde(default)]
     pub exchanged: Exchanged,
@@ -124,6 +127,9 @@ pub struct Exchanged {
     pub wedges: u64,
     /// Search frontiers (16 bytes each: a node and 64 source bits).
     pub frontier: u64,
+    /// HyperBall counters (the registers and, per item, the neighbours' slots at the receiver).
+    #[serde(default)]
+    pub counters: u64,
     /// Everything else: lone nodes, candidates, partial figures, control.
     pub other: u64,
 }
@@ -137,6 +143,7 @@ impl Exchanged {
         self.labels += o.labels;
         self.wedges += o.wedges;
         self.frontier += o.frontier;
+        self.counters += o.counters;
         self.other += o.other;
     }
 }

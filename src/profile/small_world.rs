@@ -11,7 +11,6 @@ use crate::figure::Figure;
 use crate::models::measure::measure_reference;
 use crate::models::smallworld::{self, Observed, SmallWorld};
 use crate::models::{generate, randomize};
-use crate::numeric::det_sum;
 use crate::profile::clock::Clock;
 use crate::profile::clustering::ClusteringOutcome;
 use crate::profile::distances::{DistanceOutcome, GiantComponent};
@@ -69,20 +68,15 @@ fn observed_on_giant(
     let (transitivity, average_clustering) = match per_node {
         _ if connected => (whole.transitivity.clone(), whole.average_zeros.clone()),
         Some((t, c)) => {
-            // Triangles never cross components, so the whole graph's per-node counts serve.
-            let closed: u64 = (0..n as u32).map(|v| t[giant.whole(v)]).sum();
-            let wedges = clustering::wedge_total(sub);
-            let tr = if wedges == 0 {
-                0.0
-            } else {
-                closed as f64 / wedges as f64
-            };
-            let avg = det_sum(n, |i| c[giant.whole(i as u32)]) / n as f64;
-            const ALG: &str = "forward triangle listing, on the giant component";
-            (
-                Figure::exact(tr, ALG),
-                Figure::exact_over(avg, ALG, n as u64),
-            )
+            // Triangles never cross components, so the whole graph's per-node counts serve;
+            // the sums are exact, as the distributed profile's.
+            let mut parts = clustering::ClusteringParts::default();
+            let mut closed = 0u64;
+            for v in 0..n as u32 {
+                parts.add(sub.degree(v), c[giant.whole(v)]);
+                closed += t[giant.whole(v)];
+            }
+            parts.giant_figures(closed)
         }
         _ => {
             let s = wedges::sampled_stats(

@@ -49,6 +49,13 @@ pub(crate) enum Parcel {
     Candidates(Vec<(u64, u64)>),
     /// Search frontiers offered to nodes: (node's slot at its owner, one bit per source).
     Frontier(Vec<(u64, u64)>),
+    /// Vectors summed over all workers (sent to every worker).
+    Sums(Vec<u128>),
+    /// Sampled wedges to check: (first end's slot at its owner, far end's id, target).
+    Queries(Vec<(u32, u64, u16)>),
+    /// HyperBall counters that changed: (registers, slots at the receiver of the node's
+    /// neighbours).
+    Counters(Vec<(Vec<u8>, Vec<u32>)>),
     /// A worker's partial figures, for worker 0.
     Partial(Box<super::Partial>),
     /// A worker's answer to "is there more to do?" (true) in a loop of rounds.
@@ -175,7 +182,10 @@ impl<'w> Rounds<'w> {
         let round = *self.input.time();
         self.input.advance_to(round + 1);
         while self.probe.less_than(self.input.time()) {
-            self.worker.step();
+            // Park (briefly) when idle: a busy step would take the core from another process
+            // of the run on the same machine, which is what this round waits for.
+            self.worker
+                .step_or_park(Some(std::time::Duration::from_millis(1)));
         }
         self.inbox.borrow_mut().remove(&round).unwrap_or_default()
     }
@@ -197,7 +207,8 @@ fn tally(by: &mut Exchanged, p: &Parcel, items: u64) {
         Parcel::Adjacency(_) => &mut by.adjacency,
         Parcel::NeighbourDegrees(_) | Parcel::Slots(_) => &mut by.degrees,
         Parcel::Labels(_) | Parcel::Members(_) => &mut by.labels,
-        Parcel::Wedges(_) | Parcel::Corners(_) => &mut by.wedges,
+        Parcel::Wedges(_) | Parcel::Corners(_) | Parcel::Queries(_) => &mut by.wedges,
+        Parcel::Counters(_) => &mut by.counters,
         Parcel::Frontier(_) => &mut by.frontier,
         _ => &mut by.other,
     };

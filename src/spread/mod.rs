@@ -10,7 +10,9 @@
 //! clustering and C(k). Sums of floating-point terms are kept exactly until read, so every
 //! figure matches the single-machine profile to the last digit on any number of processes.
 
+mod ball;
 mod exchange;
+mod sampling;
 mod work;
 
 use std::path::{Path, PathBuf};
@@ -18,9 +20,14 @@ use std::path::{Path, PathBuf};
 use serde::{Deserialize, Serialize};
 
 use crate::error::{Error, Result};
-use crate::exact::clustering::ClusteringParts;
+use crate::estimate::hyperball::BallOptions;
+use crate::estimate::wedges::Margin;
+use crate::exact::clustering::{ClusteringParts, ClusteringStats, DegreeClustering};
 use crate::exact::components::ComponentStats;
 use crate::exact::degrees::EndSums;
+use crate::figure::Figure;
+use crate::models::smallworld::{self, Observed};
+use crate::numeric::ExactSum;
 use crate::profile::plan::{Decision, Group};
 use crate::profile::report::{Exchanged, SpreadRun};
 use crate::profile::{Distances, EstimatedDistances, Profile};
@@ -169,6 +176,16 @@ pub(crate) struct Partial {
     components: ComponentTally,
     clustering: Option<ClusteringParts>,
     corner_sum: u64,
+    /// The giant component's clustering sums and triangle corners, and its degrees' squares
+    /// (for the small-world comparison).
+    giant_clustering: Option<ClusteringParts>,
+    giant_corners: u64,
+    giant_squares: u128,
+    /// Sampled clustering totals (the same on every worker).
+    sampled: Option<sampling::Sampled>,
+    /// HyperBall's N(t) of every run, exact partial sums.
+    ball_runs: Vec<Vec<ExactSum>>,
+    ball_rounds: u64,
     /// Giant component's size, sources searched, and each source's nodes at distance 1, 2, ….
     giant_nodes: u64,
     sources: u64,
@@ -249,6 +266,28 @@ impl Partial {
             _ => {}
         }
         self.corner_sum += o.corner_sum;
+        match (&mut self.giant_clustering, o.giant_clustering) {
+            (Some(a), Some(b)) => a.merge(&b),
+            (None, b) => self.giant_clustering = b,
+            _ => {}
+        }
+        self.giant_corners += o.giant_corners;
+        self.giant_squares += o.giant_squares;
+        if self.sampled.is_none() {
+            self.sampled = o.sampled;
+        }
+        if self.ball_runs.len() < o.ball_runs.len() {
+            self.ball_runs.resize(o.ball_runs.len(), Vec::new());
+        }
+        for (a, b) in self.ball_runs.iter_mut().zip(&o.ball_runs) {
+            if a.len() < b.len() {
+                a.resize(b.len(), ExactSum::default());
+            }
+            for (x, y) in a.iter_mut().zip(b) {
+                x.merge(y);
+            }
+        }
+        self.ball_rounds = self.ball_rounds.max(o.ball_rounds);
         // Every worker searched the same sources, in the same order.
         self.giant_nodes = self.giant_nodes.max(o.giant_nodes);
         self.sources = self.sources.max(o.sources);
@@ -277,26 +316,59 @@ impl Partial {
     }
 }
 
+/// How a distributed profile measures triangles and clustering.
+#[derive(Debug, Clone, PartialEq)]
+pub enum SpreadClustering {
+    /// Every triangle counted (forward listing, Schank & Wagner 2005): exact figures.
+    Exact,
+    /// Wedge sampling for transitivity and triangles, node-then-wedge sampling for the average
+    /// local clustering and C(k) (Seshadhri, Pinar & Kolda, SDM 2013), each sampled to its
+    /// margin with a Wilson interval, as the single-machine profile does.
+    Sampled {
+        /// Transitivity and average clustering.
+        margin: Margin,
+        /// Each C(k) bin.
+        bin_margin: Margin,
+    },
+    /// Left out.
+    Off,
+}
+
+/// How a distributed profile estimates distances.
+#[derive(Debug, Clone, PartialEq)]
+pub enum SpreadDistances {
+    /// BFS from this many sources sampled in the giant component (Eppstein & Wang 2004).
+    Sources(usize),
+    /// HyperBall on the giant component (Boldi, Rosa & Vigna 2011); its level and seed are the
+    /// profile's.
+    Ball(BallOptions),
+    /// Left out.
+    Off,
+}
+
 /// What a distributed profile computes beyond sizes, degrees and components.
 #[derive(Debug, Clone)]
 pub struct SpreadOptions {
-    /// Exact triangles, transitivity and local clustering.
-    pub clustering: bool,
-    /// BFS sources sampled in the giant component for the distance figures (Eppstein & Wang
-    /// 2004); 0 leaves distances out.
-    pub sources: usize,
-    /// Confidence level of the distance intervals.
+    /// Triangles, transitivity and local clustering.
+    pub clustering: SpreadClustering,
+    /// Mean distance, distance distribution and effective diameter.
+    pub distances: SpreadDistances,
+    /// The small-world coefficients against the analytic references (Humphries & Gurney
+    /// 2008; Telesford et al. 2011), when clustering and distances are both measured.
+    pub small_world: bool,
+    /// Confidence level of every interval.
     pub level: f64,
-    /// Seed of the source sample (the same seed and input give the same sources on any
-    /// number of processes).
+    /// Seed of every sample (the same seed and input give the same figures on any number of
+    /// processes).
     pub seed: u64,
 }
 
 impl Default for SpreadOptions {
     fn default() -> Self {
         SpreadOptions {
-            clustering: true,
-            sources: 256,
+            clustering: SpreadClustering::Exact,
+            distances: SpreadDistances::Sources(256),
+            small_world: true,
             level: 0.95,
             seed: 1,
         }
@@ -474,12 +546,36 @@ fn assemble(
         }],
         on_disk: None,
     };
+    let max_degree = degrees_len(&all.histogram).saturating_sub(1) as u32;
     let degrees = crate::exact::degrees::stats_from(n, m, all.histogram, all.sums);
     let components = all.components.stats(n);
-    let clustering = all
-        .clustering
-        .as_ref()
-        .map(|c| c.finish(all.corner_sum / 3));
+    let connected = components.count <= 1;
+    let (clustering, giant_clustering) = match (&all.clustering, &all.sampled) {
+        (Some(c), _) => {
+            let whole = c.finish(all.corner_sum / 3);
+            let giant = if connected {
+                (whole.transitivity.clone(), whole.average_zeros.clone())
+            } else {
+                all.giant_clustering
+                    .as_ref()
+                    .map(|g| g.giant_figures(all.giant_corners))
+                    .unwrap_or_else(empty_giant)
+            };
+            (Some(whole), Some(giant))
+        }
+        (None, Some(sampled)) => {
+            let (whole, giant) =
+                sampled_stats(sampled, n, components.giant_nodes, max_degree, want.level);
+            let giant = if connected {
+                (whole.transitivity.clone(), whole.average_zeros.clone())
+            } else {
+                giant
+            };
+            (Some(whole), Some(giant))
+        }
+        (None, None) => (None, None),
+    };
+    let mut plan = Vec::new();
     let mut stages = vec![
         Stage {
             name: StageName::Degrees,
@@ -490,7 +586,24 @@ fn assemble(
             seconds: all.component_seconds,
         },
     ];
-    if clustering.is_some() {
+    if let Some(sampled) = &all.sampled {
+        stages.push(Stage {
+            name: StageName::SampledClustering,
+            seconds: all.triangle_seconds,
+        });
+        plan.push(Decision {
+            group: Group::Clustering,
+            method: format!(
+                "wedge and node sampling to the margins, each node drawing its Poisson share \
+                 (seeded by its id) in {} rounds",
+                sampled.rounds
+            ),
+            exact_seconds: 0.0,
+            predicted_seconds: None,
+            budget_seconds: None,
+            reason: "sampled clustering was asked for".into(),
+        });
+    } else if clustering.is_some() {
         stages.push(Stage {
             name: StageName::Triangles,
             seconds: all.triangle_seconds,
@@ -501,8 +614,52 @@ fn assemble(
     } else {
         format!("giant component ({} of {n} nodes)", components.giant_nodes)
     };
-    let mut plan = Vec::new();
-    let distances = if all.sources > 0 {
+    let distances = if !all.ball_runs.is_empty() {
+        let SpreadDistances::Ball(o) = &want.distances else {
+            unreachable!("HyperBall runs only when asked for")
+        };
+        let opts = BallOptions {
+            level: want.level,
+            seed: want.seed,
+            ..*o
+        };
+        let runs: Vec<Vec<f64>> = all
+            .ball_runs
+            .iter()
+            .map(|r| r.iter().map(ExactSum::value).collect())
+            .collect();
+        let e = crate::estimate::hyperball::from_runs(runs, &opts);
+        stages.push(Stage {
+            name: StageName::HyperBall,
+            seconds: all.distance_seconds,
+        });
+        let method = format!(
+            "HyperBall, {} registers per node × {} hash seeds (each counter ±{:.1}% relative \
+             standard error), one exchange round per step",
+            e.registers,
+            opts.repeats,
+            100.0 * e.counter_rse
+        );
+        plan.push(Decision {
+            group: Group::Distances,
+            method,
+            exact_seconds: 0.0,
+            predicted_seconds: None,
+            budget_seconds: None,
+            reason: "HyperBall was asked for".into(),
+        });
+        Distances::Estimated(Box::new(EstimatedDistances {
+            node_set: distance_node_set.clone(),
+            nodes: all.giant_nodes,
+            mean: e.mean,
+            effective_diameter: e.effective_diameter,
+            distribution: e.distribution,
+            unreachable_pairs_in_graph: unreachable_pairs(&all.components, n),
+            sources: None,
+            registers: Some(e.registers),
+            counter_rse: Some(e.counter_rse),
+        }))
+    } else if all.sources > 0 {
         stages.push(Stage {
             name: StageName::SampledDistances,
             seconds: all.distance_seconds,
@@ -513,14 +670,6 @@ fn assemble(
             want.level,
             want.seed,
         );
-        // Ordered pairs of distinct nodes in different components.
-        let within: u128 = all
-            .components
-            .sizes
-            .iter()
-            .map(|&(size, k)| k as u128 * size as u128 * size.saturating_sub(1) as u128)
-            .sum();
-        let everything = n as u128 * n.saturating_sub(1) as u128;
         plan.push(Decision {
             group: Group::Distances,
             method: format!(
@@ -539,7 +688,7 @@ fn assemble(
             mean: s.mean,
             effective_diameter: s.effective_diameter,
             distribution: s.distribution,
-            unreachable_pairs_in_graph: (everything - within) as u64,
+            unreachable_pairs_in_graph: unreachable_pairs(&all.components, n),
             sources: Some(s.sources),
             registers: None,
             counter_rse: None,
@@ -548,6 +697,40 @@ fn assemble(
         Distances::NotRequested
     };
     let _ = seconds;
+    let small_world = match (&distances, giant_clustering, all.components.giant) {
+        (Distances::Estimated(d), Some((transitivity, average_clustering)), Some((gn, _, gm)))
+            if want.small_world && gm > 0 =>
+        {
+            let o = Observed {
+                nodes: gn,
+                edges: gm,
+                mean_degree: (2 * gm) as f64 / gn as f64,
+                second_moment: all.giant_squares as f64 / gn as f64,
+                transitivity,
+                average_clustering,
+                mean_distance: d.mean.clone(),
+            };
+            plan.push(Decision {
+                group: Group::References,
+                method: "analytic references".into(),
+                exact_seconds: 0.0,
+                predicted_seconds: None,
+                budget_seconds: None,
+                reason: "a distributed profile compares with the analytic references only \
+                         (sampled reference graphs are generated on one machine)"
+                    .into(),
+            });
+            let mut sw = smallworld::compare(
+                &o,
+                smallworld::analytic_references(&o),
+                want.level,
+                want.seed,
+            );
+            sw.node_set = distance_node_set.clone();
+            Some(sw)
+        }
+        _ => None,
+    };
     SpreadOutcome {
         profile: Profile {
             intake,
@@ -557,7 +740,7 @@ fn assemble(
             distance_node_set,
             diameter: None,
             distances,
-            small_world: None,
+            small_world,
             directed: None,
             plan,
             stages,
@@ -570,7 +753,100 @@ fn assemble(
             label_rounds: all.label_rounds,
             wedge_rounds: all.wedge_rounds,
             bfs_rounds: all.bfs_rounds,
+            ball_rounds: all.ball_rounds,
             exchanged: all.by_kind,
         },
     }
+}
+
+fn degrees_len(histogram: &[u64]) -> usize {
+    histogram.iter().rposition(|&c| c > 0).map_or(0, |i| i + 1)
+}
+
+/// Ordered pairs of distinct nodes in different components.
+fn unreachable_pairs(c: &ComponentTally, n: u64) -> u64 {
+    let within: u128 = c
+        .sizes
+        .iter()
+        .map(|&(size, k)| k as u128 * size as u128 * size.saturating_sub(1) as u128)
+        .sum();
+    (n as u128 * n.saturating_sub(1) as u128 - within) as u64
+}
+
+/// The giant component's clustering when it has no node (never read: no comparison is made).
+fn empty_giant() -> (Figure, Figure) {
+    (
+        Figure::exact(0.0, "no nodes"),
+        Figure::exact(0.0, "no nodes"),
+    )
+}
+
+/// The sampled clustering figures of the whole graph, and the giant component's transitivity
+/// and average clustering (sampled on it when it was not the whole graph).
+fn sampled_stats(
+    s: &sampling::Sampled,
+    n: u64,
+    giant_nodes: u64,
+    max_degree: u32,
+    level: f64,
+) -> (ClusteringStats, (Figure, Figure)) {
+    use crate::estimate::wedges::proportion;
+    use sampling::Aim;
+    const WEDGES: &str = "wedge sampling (Seshadhri, Pinar & Kolda 2013), each node drawing its \
+                          Poisson share, Wilson interval";
+    const NODES: &str = "uniform node then uniform wedge (Seshadhri, Pinar & Kolda 2014), each \
+                         node drawing its Poisson share, Wilson interval";
+    let find = |aim: Aim, giant_only: bool| {
+        s.targets
+            .iter()
+            .position(|t| t.aim == aim && t.giant_only == giant_only)
+            .map(|i| s.counts[i])
+    };
+    let wedge_figures =
+        |c: sampling::Count| proportion(c.closed, c.samples, level, WEDGES, c.weight as f64 / 3.0);
+    let node_figures = |c: sampling::Count, nodes: u64| {
+        let share = if nodes == 0 {
+            0.0
+        } else {
+            c.weight as f64 / nodes as f64
+        };
+        proportion(c.closed, c.samples, level, NODES, share)
+    };
+    let w = find(Aim::Wedges, false).unwrap_or_default();
+    let a = find(Aim::Nodes, false).unwrap_or_default();
+    let (transitivity, triangles) = wedge_figures(w);
+    let (average_deg2, average_zeros) = node_figures(a, n);
+    let by_degree = s
+        .targets
+        .iter()
+        .zip(&s.counts)
+        .filter_map(|(t, c)| match t.aim {
+            Aim::Bin(b) if !t.giant_only && c.weight > 0 => {
+                let low = 2u32 << b;
+                let (mean, _) = proportion(c.closed, c.samples, level, NODES, 1.0);
+                Some(DegreeClustering {
+                    low,
+                    high: (low.saturating_mul(2) - 1).min(max_degree),
+                    nodes: c.weight as u64,
+                    mean,
+                })
+            }
+            _ => None,
+        })
+        .collect();
+    let giant = match (find(Aim::Wedges, true), find(Aim::Nodes, true)) {
+        (Some(gw), Some(ga)) => (wedge_figures(gw).0, node_figures(ga, giant_nodes).1),
+        _ => (transitivity.clone(), average_zeros.clone()),
+    };
+    (
+        ClusteringStats {
+            triangles,
+            wedges: w.weight,
+            transitivity,
+            average_zeros,
+            average_deg2,
+            by_degree,
+        },
+        giant,
+    )
 }

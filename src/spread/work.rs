@@ -5,8 +5,10 @@
 use std::path::{Path, PathBuf};
 
 use super::exchange::{Parcel, Rounds, Wedge};
-use super::{ComponentTally, Partial, SpreadOptions};
+use super::sampling::{self, Aim, Target};
+use super::{ComponentTally, Partial, SpreadClustering, SpreadDistances, SpreadOptions, ball};
 use crate::error::{Error, ErrorClass, Result};
+use crate::estimate::hyperball::BallOptions;
 use crate::exact::clustering::ClusteringParts;
 use crate::progress::Quiet;
 use crate::store::graph::{Graph, NodeIds};
@@ -22,7 +24,7 @@ pub(crate) fn owner(id: u64, peers: usize) -> usize {
     (mix(id) % peers as u64) as usize
 }
 
-fn mix(mut x: u64) -> u64 {
+pub(crate) fn mix(mut x: u64) -> u64 {
     // splitmix64's finaliser (Steele, Lea & Flood 2014): consecutive ids spread evenly.
     x = (x ^ (x >> 30)).wrapping_mul(0xbf58_476d_1ce4_e5b9);
     x = (x ^ (x >> 27)).wrapping_mul(0x94d0_49bb_1331_11eb);
@@ -30,22 +32,22 @@ fn mix(mut x: u64) -> u64 {
 }
 
 /// The adjacency of the nodes a worker owns, ids ascending.
-struct Owned {
-    nodes: Vec<u64>,
-    offsets: Vec<usize>,
-    targets: Vec<u64>,
+pub(crate) struct Owned {
+    pub(crate) nodes: Vec<u64>,
+    pub(crate) offsets: Vec<usize>,
+    pub(crate) targets: Vec<u64>,
     /// The degree of `targets[i]`.
-    target_degrees: Vec<u32>,
+    pub(crate) target_degrees: Vec<u32>,
     /// Where `targets[i]` sits among its owner's nodes.
-    target_slots: Vec<u32>,
+    pub(crate) target_slots: Vec<u32>,
 }
 
 impl Owned {
-    fn degree(&self, i: usize) -> u32 {
+    pub(crate) fn degree(&self, i: usize) -> u32 {
         (self.offsets[i + 1] - self.offsets[i]) as u32
     }
 
-    fn neighbours(&self, i: usize) -> &[u64] {
+    pub(crate) fn neighbours(&self, i: usize) -> &[u64] {
         &self.targets[self.offsets[i]..self.offsets[i + 1]]
     }
 
@@ -285,16 +287,70 @@ pub(crate) fn run(
 
     let label = components(x, &owned, &mut partial);
     partial.component_seconds = clock.elapsed().as_secs_f64();
-    let clock = std::time::Instant::now();
-    if want.sources > 0 {
-        distances(x, &owned, &label, want, &mut partial);
-        partial.distance_seconds = clock.elapsed().as_secs_f64();
+
+    // The giant component, agreed on by every worker, and whether it is the whole graph.
+    let giant = giant_of(x, &partial);
+    let in_giant: Vec<bool> = label
+        .iter()
+        .map(|&l| giant.is_some_and(|g| g.1 == l))
+        .collect();
+    let whole = sampling::all_sum(x, vec![partial.nodes as u128])[0] as u64;
+    let connected = giant.is_none_or(|g| g.0 == whole);
+    partial.giant_nodes = giant.map_or(0, |g| g.0);
+    for (i, _) in in_giant.iter().enumerate().filter(|g| *g.1) {
+        let d = owned.degree(i) as u128;
+        partial.giant_squares += d * d;
     }
     let clock = std::time::Instant::now();
-    if want.clustering {
-        triangles(x, &owned, &mut partial);
-        partial.triangle_seconds = clock.elapsed().as_secs_f64();
+    match &want.distances {
+        SpreadDistances::Sources(k) if *k > 0 && giant.is_some() => {
+            distances(x, &owned, &in_giant, *k, want.seed, &mut partial);
+        }
+        SpreadDistances::Ball(o) => {
+            let o = BallOptions {
+                level: want.level,
+                seed: want.seed,
+                ..*o
+            };
+            let (runs, rounds) = ball::run(x, &owned, &in_giant, &o);
+            partial.ball_runs = runs;
+            partial.ball_rounds = rounds;
+        }
+        _ => {}
     }
+    partial.distance_seconds = clock.elapsed().as_secs_f64();
+    let clock = std::time::Instant::now();
+    match &want.clustering {
+        SpreadClustering::Exact => triangles(x, &owned, &in_giant, &mut partial),
+        SpreadClustering::Sampled { margin, bin_margin } => {
+            let mut targets = vec![
+                Target {
+                    aim: Aim::Wedges,
+                    giant_only: false,
+                },
+                Target {
+                    aim: Aim::Nodes,
+                    giant_only: false,
+                },
+            ];
+            // Every bin a degree can fall in (empty ones are dropped from the report).
+            targets.extend((0..31).map(|b| Target {
+                aim: Aim::Bin(b),
+                giant_only: false,
+            }));
+            if !connected {
+                targets.extend([Aim::Wedges, Aim::Nodes].map(|aim| Target {
+                    aim,
+                    giant_only: true,
+                }));
+            }
+            partial.sampled = Some(sampling::run(
+                x, &owned, &in_giant, targets, margin, bin_margin, want.level, want.seed,
+            ));
+        }
+        SpreadClustering::Off => {}
+    }
+    partial.triangle_seconds = clock.elapsed().as_secs_f64();
     partial.exchanged = x.sent;
     partial.by_kind = x.by_kind;
 
@@ -389,6 +445,24 @@ fn components(x: &mut Rounds, owned: &Owned, partial: &mut Partial) -> Vec<u64> 
     label
 }
 
+/// The giant component, (size, label), as every worker agrees: each offers its largest
+/// component and everyone takes the largest (the smallest label on a tie, as the
+/// single-machine profile).
+fn giant_of(x: &mut Rounds, partial: &Partial) -> Option<(u64, u64)> {
+    let peers = x.peers();
+    let offer = partial.components.giant.map(|(s, l, _)| (s, l));
+    let got = x.round(
+        (0..peers).map(|_| offer.into_iter().collect()).collect(),
+        Parcel::Giants,
+    );
+    got.into_iter()
+        .flat_map(|p| match p {
+            Parcel::Giants(v) => v,
+            _ => Vec::new(),
+        })
+        .max_by_key(|&(s, l)| (s, std::cmp::Reverse(l)))
+}
+
 /// Distances from sampled sources in the giant component: every worker offers its largest
 /// component and everyone takes the largest (the smallest label on a tie, as the single-machine
 /// profile); the sources are the `k` giant nodes of smallest seeded hash (a uniform sample
@@ -398,34 +472,20 @@ fn components(x: &mut Rounds, owned: &Owned, partial: &mut Partial) -> Vec<u64> 
 fn distances(
     x: &mut Rounds,
     owned: &Owned,
-    label: &[u64],
-    want: &SpreadOptions,
+    in_giant: &[bool],
+    k: usize,
+    seed: u64,
     partial: &mut Partial,
 ) {
     let peers = x.peers();
     let n = owned.nodes.len();
-    let offer = partial.components.giant.map(|(s, l, _)| (s, l));
-    let got = x.round(
-        (0..peers).map(|_| offer.into_iter().collect()).collect(),
-        Parcel::Giants,
-    );
-    let giant = got
-        .into_iter()
-        .flat_map(|p| match p {
-            Parcel::Giants(v) => v,
-            _ => Vec::new(),
-        })
-        .max_by_key(|&(s, l)| (s, std::cmp::Reverse(l)));
-    let Some((giant_size, giant)) = giant else {
-        return;
-    };
-    let key = |id: u64| mix(id ^ mix(want.seed));
+    let key = |id: u64| mix(id ^ mix(seed));
     let mut mine: Vec<(u64, u64)> = (0..n)
-        .filter(|&i| label[i] == giant)
+        .filter(|&i| in_giant[i])
         .map(|i| (key(owned.nodes[i]), owned.nodes[i]))
         .collect();
     mine.sort_unstable();
-    mine.truncate(want.sources);
+    mine.truncate(k);
     let got = x.round(
         (0..peers).map(|_| mine.clone()).collect(),
         Parcel::Candidates,
@@ -438,9 +498,8 @@ fn distances(
         })
         .collect();
     all.sort_unstable();
-    all.truncate(want.sources);
+    all.truncate(k);
     let sources: Vec<u64> = all.into_iter().map(|c| c.1).collect();
-    partial.giant_nodes = giant_size;
     partial.sources = sources.len() as u64;
     let mut per_source: Vec<Vec<u64>> = vec![Vec::new(); sources.len()];
     for (b, batch) in sources.chunks(64).enumerate() {
@@ -506,7 +565,7 @@ fn distances(
 /// pair of a node's out-neighbours is an open wedge, sent to the owner of its lower end, which
 /// checks the closing edge in its list. Each triangle is found once, at its lowest corner, and
 /// its three corners are credited. Wedges go out in bounded rounds until none is left.
-fn triangles(x: &mut Rounds, owned: &Owned, partial: &mut Partial) {
+fn triangles(x: &mut Rounds, owned: &Owned, in_giant: &[bool], partial: &mut Partial) {
     let peers = x.peers();
     let n = owned.nodes.len();
     let mut corners: Vec<u64> = vec![0; n];
@@ -569,6 +628,7 @@ fn triangles(x: &mut Rounds, owned: &Owned, partial: &mut Partial) {
         }
     }
     let mut parts = ClusteringParts::default();
+    let mut giant = ClusteringParts::default();
     for (i, &t) in corners.iter().enumerate() {
         let d = owned.degree(i);
         // As `exact::clustering::local_from`, to the last digit.
@@ -580,8 +640,13 @@ fn triangles(x: &mut Rounds, owned: &Owned, partial: &mut Partial) {
         };
         parts.add(d, c);
         partial.corner_sum += t;
+        if in_giant[i] {
+            giant.add(d, c);
+            partial.giant_corners += t;
+        }
     }
     partial.clustering = Some(parts);
+    partial.giant_clustering = Some(giant);
 }
 
 fn class_code(c: ErrorClass) -> u8 {
