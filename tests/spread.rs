@@ -422,6 +422,7 @@ fn distance_intervals_cover_the_exact_mean_at_the_nominal_rate() {
         let iv = e.mean.interval().unwrap();
         covered += usize::from(iv.low <= truth && truth <= iv.high);
     }
+    eprintln!("covered {covered} of 60");
     assert!(covered >= 51, "covered {covered} of 60");
 }
 

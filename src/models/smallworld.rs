@@ -447,8 +447,8 @@ pub fn compare(o: &Observed, references: Vec<Reference>, level: f64, seed: u64) 
             "omega can leave [-1, 1] when the graph clusters more than the lattice or is closer \
              than the random reference"
                 .into(),
-            "analytic references carry no ensemble spread; sampled reference graphs \
-             (--reference-graphs) fold it into the intervals"
+            "analytic references carry no ensemble spread; sampled reference graphs (built on \
+             one machine: plumb profile --reference-graphs) fold it into the intervals"
                 .into(),
         ],
     }
