@@ -274,6 +274,18 @@ fn sampled_figures_and_the_small_world_comparison_agree_with_the_single_machine(
             "sigma {sig} is far from {truth}"
         );
     }
+    // A distributed report is a report: `compare` reads it beside the single machine's and,
+    // the graph being the same, raises no alert.
+    let single_json = tmp.path().join("single.json");
+    let sampled_json = tmp.path().join("sampled-2.json");
+    let out = plumb(&[
+        "compare",
+        single_json.to_str().unwrap(),
+        sampled_json.to_str().unwrap(),
+    ]);
+    let text = String::from_utf8_lossy(&out.stdout);
+    assert_eq!(out.status.code(), Some(0), "{text}");
+    assert!(text.contains("0 alerts"), "{text}");
 }
 
 #[test]
@@ -344,15 +356,68 @@ fn bad_input_in_one_part_is_named_with_its_line() {
             "{p}: {err}"
         );
     }
-    // Text ids are refused by name (the run exchanges integer ids).
-    std::fs::write(dir.join("part-9.txt"), "1 2\n2 alpha\n").unwrap();
-    let e = plumb::spread::profile(&dir, &Peers::alone(2), &LoadOptions::default(), &opts())
-        .unwrap_err()
-        .to_string();
+}
+
+/// Text ids: one part with a text id makes every id text, kept as written ("007" and "7" are
+/// two nodes), on one machine and distributed alike; the exact figures agree to the last digit
+/// and the first text id is named by part and line. Two ids whose hashes clash stop the run
+/// (forced here by keeping 4 bits of each hash).
+#[test]
+fn text_ids_are_read_as_on_one_machine() {
+    let tmp = tempfile::tempdir().unwrap();
+    let dir = tmp.path().join("dump");
+    write_parts(&dir, 4);
+    std::fs::write(dir.join("part-9.txt"), "10 20\n20 alpha\n007 7\n7 alpha\n").unwrap();
+    let single = tmp.path().join("single.json");
+    let out = plumb(&[
+        "profile",
+        dir.to_str().unwrap(),
+        "--figures",
+        "clustering",
+        "--clustering",
+        "exact",
+        "--json",
+        single.to_str().unwrap(),
+    ]);
     assert!(
-        e.contains("integer ids only") && e.contains("part-9.txt"),
-        "{e}"
+        out.status.success(),
+        "{}",
+        String::from_utf8_lossy(&out.stderr)
     );
+    let single = read_json(&single);
+    assert_eq!(single["profile"]["intake"]["id_kind"], "text");
+    let want = exact_part(&single);
+    for workers in [1, 3] {
+        let got = plumb::spread::profile(
+            &dir,
+            &Peers::alone(workers),
+            &LoadOptions::default(),
+            &opts(),
+        )
+        .unwrap()
+        .unwrap();
+        let doc = serde_json::json!({ "profile": serde_json::to_value(&got.profile).unwrap() });
+        assert_eq!(exact_part(&doc), want, "{workers} workers");
+        let i = &doc["profile"]["intake"];
+        assert_eq!(i["id_kind"], "text");
+        assert_eq!(i["first_text_id"]["id"], "alpha");
+        assert_eq!(i["first_text_id"]["line"], 2);
+        assert!(
+            i["first_text_id"]["part"]
+                .as_str()
+                .unwrap()
+                .ends_with("part-9.txt")
+        );
+    }
+    let out = std::process::Command::new(env!("CARGO_BIN_EXE_plumb"))
+        .args(["spread", dir.to_str().unwrap(), "--local", "2"])
+        .env("PLUMB_SPREAD_NARROW_HASH", "1")
+        .output()
+        .unwrap();
+    let err = String::from_utf8_lossy(&out.stderr);
+    assert_eq!(out.status.code(), Some(2), "{err}");
+    assert!(err.contains("same 64-bit hash"), "{err}");
+    assert!(!err.contains("panicked"), "{err}");
 }
 
 #[test]

@@ -189,6 +189,7 @@ pub(crate) fn run(args: Args) -> Result<ExitCode, Error> {
                     level,
                     seed,
                 },
+                quiet: args.quiet,
             };
             spread::run(&input, json.as_deref(), &how)?
         }

@@ -22,6 +22,8 @@ pub(crate) struct How {
     pub(crate) rank: Option<usize>,
     pub(crate) workers: usize,
     pub(crate) want: plumb::spread::SpreadOptions,
+    /// No progress bar, even on a terminal.
+    pub(crate) quiet: bool,
 }
 
 pub(crate) fn run(input: &InputArgs, json: Option<&Path>, how: &How) -> Result<(), Error> {
@@ -55,7 +57,14 @@ fn one_process(
     how: &How,
     peers: &Peers,
 ) -> Result<(), Error> {
-    let outcome = match plumb::spread::profile(&input.input, peers, &input.options(), &how.want) {
+    let bars = std::sync::Arc::new(super::bars::Bars::new(how.quiet));
+    let outcome = match plumb::spread::profile_reporting(
+        &input.input,
+        peers,
+        &input.options(),
+        &how.want,
+        bars,
+    ) {
         // Another process's failure is reported by that process and by process 0; the rest
         // leave with its exit code and say nothing more.
         Err(e @ Error::Remote { .. }) if peers.process != 0 => {

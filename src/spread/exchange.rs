@@ -6,6 +6,7 @@
 use std::cell::RefCell;
 use std::collections::BTreeMap;
 use std::rc::Rc;
+use std::sync::Arc;
 
 use serde::{Deserialize, Serialize};
 use timely::container::CapacityContainerBuilder;
@@ -16,6 +17,7 @@ use timely::dataflow::{InputHandle, ProbeHandle};
 use timely::worker::Worker;
 
 use crate::profile::report::Exchanged;
+use crate::progress::{Progress, Unit};
 
 /// Items per batch: large enough to amortise the engine's per-message cost, small enough that
 /// a round's buffers do not double a worker's memory at once.
@@ -49,6 +51,8 @@ pub(crate) enum Parcel {
     Candidates(Vec<(u64, u64)>),
     /// Search frontiers offered to nodes: (node's slot at its owner, one bit per source).
     Frontier(Vec<(u64, u64)>),
+    /// Text ids to check for a shared hash: (hash, the id's bytes).
+    Names(Vec<(u64, Vec<u8>)>),
     /// Vectors summed over all workers (sent to every worker).
     Sums(Vec<u128>),
     /// Sampled wedges to check: (first end's slot at its owner, far end's id, target).
@@ -87,10 +91,12 @@ pub(crate) struct Rounds<'w> {
     pub(crate) sent: u64,
     /// The same, by kind of parcel.
     pub(crate) by_kind: Exchanged,
+    /// Told of each stage and round (the reporting worker's; the others' is quiet).
+    progress: Arc<dyn Progress + Send + Sync>,
 }
 
 impl<'w> Rounds<'w> {
-    pub(crate) fn new(worker: &'w mut Worker) -> Self {
+    pub(crate) fn new(worker: &'w mut Worker, progress: Arc<dyn Progress + Send + Sync>) -> Self {
         let mut input = InputHandle::new();
         let inbox: Rc<RefCell<BTreeMap<u64, Vec<Parcel>>>> = Rc::new(RefCell::new(BTreeMap::new()));
         let sink = inbox.clone();
@@ -128,7 +134,18 @@ impl<'w> Rounds<'w> {
             inbox,
             sent: 0,
             by_kind: Exchanged::default(),
+            progress,
         }
+    }
+
+    /// A new stage of the run starts (shown by the reporting worker, a round at a time).
+    pub(crate) fn stage(&self, name: &str) {
+        self.progress.stage(name, None, Unit::Items);
+    }
+
+    /// The run's stages are over.
+    pub(crate) fn finish(&self) {
+        self.progress.finish();
     }
 
     pub(crate) fn index(&self) -> usize {
@@ -187,6 +204,7 @@ impl<'w> Rounds<'w> {
             self.worker
                 .step_or_park(Some(std::time::Duration::from_millis(1)));
         }
+        self.progress.advance(1);
         self.inbox.borrow_mut().remove(&round).unwrap_or_default()
     }
 

@@ -16,6 +16,7 @@ mod sampling;
 mod work;
 
 use std::path::{Path, PathBuf};
+use std::sync::Arc;
 
 use serde::{Deserialize, Serialize};
 
@@ -31,8 +32,9 @@ use crate::numeric::ExactSum;
 use crate::profile::plan::{Decision, Group};
 use crate::profile::report::{Exchanged, SpreadRun};
 use crate::profile::{Distances, EstimatedDistances, Profile};
+use crate::progress::Progress;
 use crate::read::source::Compression;
-use crate::store::intake::{BadLine, IdKind, InputFormat, Intake, Stage, StageName};
+use crate::store::intake::{BadLine, FirstTextId, IdKind, InputFormat, Intake, Stage, StageName};
 use crate::store::load::LoadOptions;
 
 /// Where the processes of a run are and which one this is. The addresses are the engine's own
@@ -168,6 +170,10 @@ pub(crate) struct Partial {
     malformed_skipped: u64,
     /// Skipped lines, each naming its part (ordered by part and line when merged).
     malformed_examples: Vec<BadLine>,
+    /// Whether the ids are text (then every worker reads them as text).
+    text_ids: bool,
+    /// The first id that is not an integer, by part and line.
+    first_text_id: Option<FirstTextId>,
     nodes: u64,
     edges: u64,
     directed_pairs: u64,
@@ -219,6 +225,13 @@ impl Partial {
         self.extra_column_lines += i.extra_column_lines;
         self.self_loops += i.self_loops;
         self.malformed_skipped += i.malformed_skipped;
+        if let Some(f) = &i.first_text_id {
+            let mut f = f.clone();
+            if f.part.is_none() {
+                f.part = mine.first().map(|p| p.display().to_string());
+            }
+            self.first_text_id = Some(f);
+        }
         for b in &i.malformed_examples {
             let mut b = b.clone();
             if b.part.is_none() {
@@ -245,6 +258,12 @@ impl Partial {
         self.self_loops += o.self_loops;
         self.malformed_skipped += o.malformed_skipped;
         self.malformed_examples.extend(o.malformed_examples);
+        self.text_ids |= o.text_ids;
+        // Parts are named in path order, the order they are read in.
+        self.first_text_id = [self.first_text_id.take(), o.first_text_id]
+            .into_iter()
+            .flatten()
+            .min_by(|a, b| (&a.part, a.line).cmp(&(&b.part, b.line)));
         self.nodes += o.nodes;
         self.edges += o.edges;
         self.directed_pairs += o.directed_pairs;
@@ -394,6 +413,18 @@ pub fn profile(
     load: &LoadOptions,
     want: &SpreadOptions,
 ) -> Result<Option<SpreadOutcome>> {
+    profile_reporting(input, peers, load, want, Arc::new(crate::progress::Quiet))
+}
+
+/// As [`profile`], telling `progress` of each stage and round (on process 0's first worker
+/// only, so one terminal shows one bar).
+pub fn profile_reporting(
+    input: &Path,
+    peers: &Peers,
+    load: &LoadOptions,
+    want: &SpreadOptions,
+    progress: Arc<dyn Progress + Send + Sync>,
+) -> Result<Option<SpreadOutcome>> {
     if load.directed {
         return Err(Error::Parameters {
             problem: "a distributed profile reads undirected graphs only; --directed is for \
@@ -424,9 +455,15 @@ pub fn profile(
         want.clone(),
     );
     let cluster = peers.addresses.len() > 1;
+    let reporter = peers.process == 0;
     let start = move || {
         timely::execute(config, move |worker| {
-            let mut rounds = exchange::Rounds::new(worker);
+            let shows: Arc<dyn Progress + Send + Sync> = if reporter && worker.index() == 0 {
+                progress.clone()
+            } else {
+                Arc::new(crate::progress::Quiet)
+            };
+            let mut rounds = exchange::Rounds::new(worker, shows);
             work::run(&mut rounds, &shown, &parts2, &load2, &want2)
         })
     };
@@ -538,8 +575,12 @@ fn assemble(
         nodes: n,
         edges: m,
         isolated_nodes: isolated,
-        id_kind: IdKind::Integer,
-        first_text_id: None,
+        id_kind: if all.text_ids {
+            IdKind::Text
+        } else {
+            IdKind::Integer
+        },
+        first_text_id: all.first_text_id,
         stages: vec![Stage {
             name: StageName::Scan,
             seconds: all.read_seconds,

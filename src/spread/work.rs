@@ -57,8 +57,14 @@ impl Owned {
 }
 
 /// Read this worker's parts: the graph they make (with each edge's directions, for the
-/// cleaning counts), or `None` when it has no parts or they hold no lines.
-fn read_share(shown: &Path, mine: &[PathBuf], load: &LoadOptions) -> Result<Option<Graph>> {
+/// cleaning counts), or `None` when it has no parts or they hold no lines. `text` reads every
+/// id as text.
+fn read_share(
+    shown: &Path,
+    mine: &[PathBuf],
+    load: &LoadOptions,
+    text: bool,
+) -> Result<Option<Graph>> {
     if mine.is_empty() {
         return Ok(None);
     }
@@ -66,22 +72,7 @@ fn read_share(shown: &Path, mine: &[PathBuf], load: &LoadOptions) -> Result<Opti
         directed: true,
         ..load.clone()
     };
-    match crate::store::load::load_paths(shown, mine, &opts, &Quiet) {
-        Ok(g) if g.ids.kind() == IdKind::Text => Err(Error::Parameters {
-            problem: format!(
-                "{}: a distributed profile reads integer ids only, and {} has text ids ({})",
-                shown.display(),
-                g.intake
-                    .first_text_id
-                    .as_ref()
-                    .and_then(|f| f.part.clone())
-                    .unwrap_or_else(|| mine[0].display().to_string()),
-                g.intake
-                    .first_text_id
-                    .as_ref()
-                    .map_or(String::new(), |f| format!("{:?} on line {}", f.id, f.line)),
-            ),
-        }),
+    match crate::store::load::load_paths(shown, mine, &opts, &Quiet, text) {
         Ok(g) => Ok(Some(g)),
         // Parts with no lines at all add nothing.
         Err(Error::Empty { .. }) => Ok(None),
@@ -89,12 +80,92 @@ fn read_share(shown: &Path, mine: &[PathBuf], load: &LoadOptions) -> Result<Opti
     }
 }
 
-fn id_of(ids: &NodeIds, u: usize) -> u64 {
-    match ids {
-        NodeIds::Range { first, .. } => first + u as u64,
-        NodeIds::Ints(v) => v[u],
-        NodeIds::Text { .. } => unreachable!("text ids are refused before"),
+/// Every worker says whether its step failed; everyone learns of a failure before any other
+/// round, so no worker waits on one that quit. A worker's own failure comes first.
+fn no_faults<T>(x: &mut Rounds, mine: Result<T>) -> Result<T> {
+    let (me, peers) = (x.index(), x.peers());
+    let fault = mine
+        .as_ref()
+        .err()
+        .map(|e| (me as u32, class_code(e.class()), e.to_string()));
+    let got = x.round(
+        (0..peers)
+            .map(|_| fault.iter().cloned().collect())
+            .collect(),
+        Parcel::Fault,
+    );
+    let mine = mine?;
+    let first = got
+        .into_iter()
+        .flat_map(|p| match p {
+            Parcel::Fault(v) => v,
+            _ => Vec::new(),
+        })
+        .min_by_key(|f| f.0);
+    if let Some((worker, class, problem)) = first {
+        return Err(Error::Remote {
+            problem: format!("worker {worker} of the run failed: {problem}"),
+            class: class_of(class),
+        });
     }
+    Ok(mine)
+}
+
+/// The id every worker knows a node by: the integer as written, or for text ids a 64-bit hash
+/// of the bytes (XXH3); [`distinct_hashes`] checks that no two ids share one.
+fn global_ids(ids: &NodeIds, n: usize) -> Vec<u64> {
+    // Fault injection for the test of a clash: PLUMB_SPREAD_NARROW_HASH keeps 4 bits of each.
+    let mask = if std::env::var_os("PLUMB_SPREAD_NARROW_HASH").is_some() {
+        0xF
+    } else {
+        u64::MAX
+    };
+    match ids {
+        NodeIds::Range { first, .. } => (0..n as u64).map(|u| first + u).collect(),
+        NodeIds::Ints(v) => v.to_vec(),
+        NodeIds::Text { offsets, bytes } => (0..n)
+            .map(|u| {
+                let id = &bytes[offsets[u] as usize..offsets[u + 1] as usize];
+                xxhash_rust::xxh3::xxh3_64(id) & mask
+            })
+            .collect(),
+    }
+}
+
+/// Round: each text id to the owner of its hash, which checks that no two distinct ids share
+/// one (about n²/2⁶⁵ pairs are expected to: a run with one stops rather than merge two nodes).
+fn distinct_hashes(x: &mut Rounds, g: Option<&Graph>, keys: &[u64]) -> Result<()> {
+    let peers = x.peers();
+    let mut out: Vec<Vec<(u64, Vec<u8>)>> = vec![Vec::new(); peers];
+    if let Some(NodeIds::Text { offsets, bytes }) = g.map(|g| &g.ids) {
+        for (u, &k) in keys.iter().enumerate() {
+            let name = bytes[offsets[u] as usize..offsets[u + 1] as usize].to_vec();
+            out[owner(k, peers)].push((k, name));
+        }
+    }
+    let mut got: Vec<(u64, Vec<u8>)> = Vec::new();
+    for p in x.round(out, Parcel::Names) {
+        if let Parcel::Names(v) = p {
+            got.extend(v);
+        }
+    }
+    got.sort_unstable();
+    got.dedup();
+    let clash = got.windows(2).find(|w| w[0].0 == w[1].0).map(|w| {
+        format!(
+            "the text ids {:?} and {:?} have the same 64-bit hash, which a distributed profile \
+             uses as their name; profile this graph on one machine",
+            String::from_utf8_lossy(&w[0].1),
+            String::from_utf8_lossy(&w[1].1)
+        )
+    });
+    no_faults(
+        x,
+        match clash {
+            Some(problem) => Err(Error::Parameters { problem }),
+            None => Ok(()),
+        },
+    )
 }
 
 /// Run this worker's share; worker 0 returns the merged partial figures.
@@ -113,31 +184,25 @@ pub(crate) fn run(
         .map(|(_, p)| p.clone())
         .collect();
     let started = std::time::Instant::now();
-    let share = read_share(shown, &mine, load);
-    // Everyone learns of a failure before any other round, so no worker waits on one that quit.
-    let fault = share
+    x.stage("reading parts");
+    let mut share = no_faults(x, read_share(shown, &mine, load, false))?;
+    // Round: one text id anywhere makes every id text, kept as written ("007" is not "7"),
+    // as on one machine; shares read as integers are read again.
+    let is_text = |s: &Option<Graph>| s.as_ref().is_some_and(|g| g.ids.kind() == IdKind::Text);
+    let text = sampling::all_sum(x, vec![u128::from(is_text(&share))])[0] > 0;
+    if text {
+        let again = if share.is_some() && !is_text(&share) {
+            read_share(shown, &mine, load, true)
+        } else {
+            Ok(share.take())
+        };
+        share = no_faults(x, again)?;
+    }
+    let keys = share
         .as_ref()
-        .err()
-        .map(|e| (me as u32, class_code(e.class()), e.to_string()));
-    let got = x.round(
-        (0..peers)
-            .map(|_| fault.iter().cloned().collect())
-            .collect(),
-        Parcel::Fault,
-    );
-    let share = share?;
-    let first = got
-        .into_iter()
-        .flat_map(|p| match p {
-            Parcel::Fault(v) => v,
-            _ => Vec::new(),
-        })
-        .min_by_key(|f| f.0);
-    if let Some((worker, class, problem)) = first {
-        return Err(Error::Remote {
-            problem: format!("worker {worker} of the run failed: {problem}"),
-            class: class_of(class),
-        });
+        .map_or_else(Vec::new, |g| global_ids(&g.ids, g.node_count()));
+    if text {
+        distinct_hashes(x, share.as_ref(), &keys)?;
     }
     let mut partial = Partial {
         read_seconds: started.elapsed().as_secs_f64(),
@@ -145,22 +210,24 @@ pub(crate) fn run(
     };
     let clock = std::time::Instant::now();
 
+    x.stage("gathering edges");
     // Round: every distinct edge to the worker its pair hashes to, with its directions; nodes
     // without edges to their owners.
     let mut edges_out: Vec<Vec<(u64, u64, u8)>> = vec![Vec::new(); peers];
     let mut lone_out: Vec<Vec<u64>> = vec![Vec::new(); peers];
+    partial.text_ids = text;
     if let Some(g) = &share {
         partial.add_intake(&g.intake, &mine);
         let dirs = g.directions.as_ref();
         let offsets = g.csr.offsets();
         for u in 0..g.node_count() {
-            let a = id_of(&g.ids, u);
+            let a = keys[u];
             let (s, e) = (offsets[u] as usize, offsets[u + 1] as usize);
             if s == e {
                 lone_out[owner(a, peers)].push(a);
             }
             for k in s..e {
-                let b = id_of(&g.ids, g.csr.targets()[k] as usize);
+                let b = keys[g.csr.targets()[k] as usize];
                 if a < b {
                     // Entry flags: 1 for u → v as written, 2 for v → u.
                     let f = dirs.map_or(3, |d| d[k]);
@@ -285,6 +352,7 @@ pub(crate) fn run(
     partial.degree_seconds = clock.elapsed().as_secs_f64();
     let clock = std::time::Instant::now();
 
+    x.stage("components");
     let label = components(x, &owned, &mut partial);
     partial.component_seconds = clock.elapsed().as_secs_f64();
 
@@ -304,6 +372,7 @@ pub(crate) fn run(
     let clock = std::time::Instant::now();
     match &want.distances {
         SpreadDistances::Sources(k) if *k > 0 && giant.is_some() => {
+            x.stage("distances");
             distances(x, &owned, &in_giant, *k, want.seed, &mut partial);
         }
         SpreadDistances::Ball(o) => {
@@ -312,6 +381,7 @@ pub(crate) fn run(
                 seed: want.seed,
                 ..*o
             };
+            x.stage("HyperBall");
             let (runs, rounds) = ball::run(x, &owned, &in_giant, &o);
             partial.ball_runs = runs;
             partial.ball_rounds = rounds;
@@ -321,8 +391,12 @@ pub(crate) fn run(
     partial.distance_seconds = clock.elapsed().as_secs_f64();
     let clock = std::time::Instant::now();
     match &want.clustering {
-        SpreadClustering::Exact => triangles(x, &owned, &in_giant, &mut partial),
+        SpreadClustering::Exact => {
+            x.stage("triangles");
+            triangles(x, &owned, &in_giant, &mut partial);
+        }
         SpreadClustering::Sampled { margin, bin_margin } => {
+            x.stage("sampled clustering");
             let mut targets = vec![
                 Target {
                     aim: Aim::Wedges,
@@ -351,6 +425,7 @@ pub(crate) fn run(
         SpreadClustering::Off => {}
     }
     partial.triangle_seconds = clock.elapsed().as_secs_f64();
+    x.finish();
     partial.exchanged = x.sent;
     partial.by_kind = x.by_kind;
 

@@ -234,14 +234,17 @@ fn load_to(
     loader.run()
 }
 
-/// Read the part files `paths` as one graph, for a distributed profile's share of them.
+/// Read the part files `paths` as one graph, for a distributed profile's share of them;
+/// `text` reads every id as text (kept as written) even when all are integers, as the whole
+/// graph's ids are when another share has a text id.
 pub(crate) fn load_paths(
     shown: &Path,
     paths: &[std::path::PathBuf],
     opts: &LoadOptions,
     progress: &dyn Progress,
+    text: bool,
 ) -> Result<Graph> {
-    load_parts(shown, paths, None, opts, progress)
+    load_parts_as(shown, paths, None, opts, progress, text)
 }
 
 /// Read the part files `paths` (plain, zstd or gzip edge lists, in this order) as one graph;
@@ -252,6 +255,17 @@ fn load_parts(
     dest: Option<&Path>,
     opts: &LoadOptions,
     progress: &dyn Progress,
+) -> Result<Graph> {
+    load_parts_as(shown, paths, dest, opts, progress, false)
+}
+
+fn load_parts_as(
+    shown: &Path,
+    paths: &[std::path::PathBuf],
+    dest: Option<&Path>,
+    opts: &LoadOptions,
+    progress: &dyn Progress,
+    text: bool,
 ) -> Result<Graph> {
     if opts.format == FormatChoice::MatrixMarket {
         return Err(Error::Parameters {
@@ -303,7 +317,11 @@ fn load_parts(
         .collect();
     let mut loader = Loader::new(shown, parts, opts, progress)?;
     loader.dest = dest;
-    loader.run()
+    if text {
+        loader.run_text()
+    } else {
+        loader.run()
+    }
 }
 
 /// The pieces of one input (or part), sized from the whole input's `total` bytes.
