@@ -55,6 +55,20 @@ fn opts() -> SpreadOptions {
     SpreadOptions::default()
 }
 
+/// Run `plumb args --json json`, fail with its error output unless it succeeds, and read the
+/// report it wrote.
+fn report_of(args: &[&str], json: &Path) -> Value {
+    let mut all = args.to_vec();
+    all.extend(["--json", json.to_str().unwrap()]);
+    let out = plumb(&all);
+    assert!(
+        out.status.success(),
+        "{args:?}: {}",
+        String::from_utf8_lossy(&out.stderr)
+    );
+    read_json(json)
+}
+
 fn read_json(p: &Path) -> Value {
     serde_json::from_slice(&std::fs::read(p).unwrap()).unwrap()
 }
@@ -95,45 +109,28 @@ fn one_two_and_four_processes_agree_with_the_single_machine_profile() {
     let dir = tmp.path().join("dump");
     write_parts(&dir, 11);
     let single = tmp.path().join("single.json");
-    let out = plumb(&[
-        "profile",
-        dir.to_str().unwrap(),
-        "--figures",
-        "clustering,distances",
-        "--clustering",
-        "exact",
-        "--distances",
-        "sources",
-        "--json",
-        single.to_str().unwrap(),
-    ]);
-    assert!(
-        out.status.success(),
-        "{}",
-        String::from_utf8_lossy(&out.stderr)
+    let one = report_of(
+        &[
+            "profile",
+            dir.to_str().unwrap(),
+            "--figures",
+            "clustering,distances",
+            "--clustering",
+            "exact",
+            "--distances",
+            "sources",
+        ],
+        &single,
     );
-    let want = exact_part(&read_json(&single));
-    let single_mean = read_json(&single)["profile"]["distances"]["mean"].clone();
+    let want = exact_part(&one);
+    let single_mean = one["profile"]["distances"]["mean"].clone();
     assert!(single_mean["value"].as_f64().unwrap() > 1.0);
     let mut first_distances: Option<Value> = None;
     assert!(want["components"]["count"].as_u64().unwrap() > 40);
     assert!(want["clustering"]["triangles"]["value"].as_f64().unwrap() > 100.0);
     for p in ["1", "2", "4"] {
         let json = tmp.path().join(format!("spread-{p}.json"));
-        let out = plumb(&[
-            "spread",
-            dir.to_str().unwrap(),
-            "--local",
-            p,
-            "--json",
-            json.to_str().unwrap(),
-        ]);
-        assert!(
-            out.status.success(),
-            "{p} processes: {}",
-            String::from_utf8_lossy(&out.stderr)
-        );
-        let doc = read_json(&json);
+        let doc = report_of(&["spread", dir.to_str().unwrap(), "--local", p], &json);
         common::assert_valid_profile(&doc);
         assert_eq!(exact_part(&doc), want, "{p} processes");
         // The sampled distances: the same sources (same seed) on any number of processes give
@@ -150,7 +147,7 @@ fn one_two_and_four_processes_agree_with_the_single_machine_profile() {
             "{a} and {b} do not overlap"
         );
         assert_eq!(doc["spread"]["processes"], p.parse::<u64>().unwrap());
-        assert_eq!(doc["input"]["xxh3"], read_json(&single)["input"]["xxh3"]);
+        assert_eq!(doc["input"]["xxh3"], one["input"]["xxh3"]);
     }
     // Several workers in one process, through the library.
     let got = plumb::spread::profile(&dir, &Peers::alone(3), &LoadOptions::default(), &opts())
@@ -170,44 +167,35 @@ fn sampled_figures_and_the_small_world_comparison_agree_with_the_single_machine(
     let tmp = tempfile::tempdir().unwrap();
     let dir = tmp.path().join("dump");
     write_parts(&dir, 12);
-    let single = tmp.path().join("single.json");
-    let out = plumb(&[
-        "profile",
-        dir.to_str().unwrap(),
-        "--clustering",
-        "exact",
-        "--distances",
-        "exact",
-        "--reference-graphs",
-        "0",
-        "--json",
-        single.to_str().unwrap(),
-    ]);
-    assert!(
-        out.status.success(),
-        "{}",
-        String::from_utf8_lossy(&out.stderr)
-    );
-    let single = read_json(&single)["profile"].clone();
+    let single_json = tmp.path().join("single.json");
+    let single = report_of(
+        &[
+            "profile",
+            dir.to_str().unwrap(),
+            "--clustering",
+            "exact",
+            "--distances",
+            "exact",
+            "--reference-graphs",
+            "0",
+        ],
+        &single_json,
+    )["profile"]
+        .clone();
     let mut first: Option<Value> = None;
     for p in ["1", "2"] {
         let json = tmp.path().join(format!("sampled-{p}.json"));
-        let out = plumb(&[
-            "spread",
-            dir.to_str().unwrap(),
-            "--local",
-            p,
-            "--sampled-clustering",
-            "--hyperball",
-            "--json",
-            json.to_str().unwrap(),
-        ]);
-        assert!(
-            out.status.success(),
-            "{}",
-            String::from_utf8_lossy(&out.stderr)
+        let doc = report_of(
+            &[
+                "spread",
+                dir.to_str().unwrap(),
+                "--local",
+                p,
+                "--sampled-clustering",
+                "--hyperball",
+            ],
+            &json,
         );
-        let doc = read_json(&json);
         common::assert_valid_profile(&doc);
         let got = &doc["profile"];
         let estimated =
@@ -276,7 +264,6 @@ fn sampled_figures_and_the_small_world_comparison_agree_with_the_single_machine(
     }
     // A distributed report is a report: `compare` reads it beside the single machine's and,
     // the graph being the same, raises no alert.
-    let single_json = tmp.path().join("single.json");
     let sampled_json = tmp.path().join("sampled-2.json");
     let out = plumb(&[
         "compare",
@@ -368,23 +355,17 @@ fn text_ids_are_read_as_on_one_machine() {
     let dir = tmp.path().join("dump");
     write_parts(&dir, 4);
     std::fs::write(dir.join("part-9.txt"), "10 20\n20 alpha\n007 7\n7 alpha\n").unwrap();
-    let single = tmp.path().join("single.json");
-    let out = plumb(&[
-        "profile",
-        dir.to_str().unwrap(),
-        "--figures",
-        "clustering",
-        "--clustering",
-        "exact",
-        "--json",
-        single.to_str().unwrap(),
-    ]);
-    assert!(
-        out.status.success(),
-        "{}",
-        String::from_utf8_lossy(&out.stderr)
+    let single = report_of(
+        &[
+            "profile",
+            dir.to_str().unwrap(),
+            "--figures",
+            "clustering",
+            "--clustering",
+            "exact",
+        ],
+        &tmp.path().join("single.json"),
     );
-    let single = read_json(&single);
     assert_eq!(single["profile"]["intake"]["id_kind"], "text");
     let want = exact_part(&single);
     for workers in [1, 3] {
@@ -441,20 +422,7 @@ fn a_peers_file_is_checked() {
 /// 0.1% at a true rate of 95% (binomial tail, common practice).
 #[test]
 fn distance_intervals_cover_the_exact_mean_at_the_nominal_rate() {
-    let tmp = tempfile::tempdir().unwrap();
-    let dir = tmp.path().join("ws");
-    std::fs::create_dir(&dir).unwrap();
-    let model = plumb::models::generate::Model::WattsStrogatz {
-        n: 600,
-        k: 6,
-        p: 0.05,
-    };
-    let mut lines = Vec::new();
-    plumb::models::generate::stream(&model, 3, &mut |a, b| lines.push(format!("{a} {b}"))).unwrap();
-    for (k, chunk) in lines.chunks(700).enumerate() {
-        std::fs::write(dir.join(format!("p{k}.txt")), chunk.join("\n")).unwrap();
-    }
-    let g = plumb::store::load::load(&dir, &LoadOptions::default(), &Quiet).unwrap();
+    let (_tmp, dir, g) = small_world_parts(600, 0.05, 3, 700);
     let opts = plumb::profile::ProfileOptions {
         distances: plumb::profile::Choice::Exact,
         groups: plumb::profile::Groups {
@@ -499,20 +467,7 @@ fn distance_intervals_cover_the_exact_mean_at_the_nominal_rate() {
 /// the one above (binomial tail, common practice).
 #[test]
 fn sampled_clustering_and_hyperball_cover_at_the_nominal_rate() {
-    let tmp = tempfile::tempdir().unwrap();
-    let dir = tmp.path().join("ws");
-    std::fs::create_dir(&dir).unwrap();
-    let model = plumb::models::generate::Model::WattsStrogatz {
-        n: 400,
-        k: 6,
-        p: 0.1,
-    };
-    let mut lines = Vec::new();
-    plumb::models::generate::stream(&model, 5, &mut |a, b| lines.push(format!("{a} {b}"))).unwrap();
-    for (k, chunk) in lines.chunks(500).enumerate() {
-        std::fs::write(dir.join(format!("p{k}.txt")), chunk.join("\n")).unwrap();
-    }
-    let g = plumb::store::load::load(&dir, &LoadOptions::default(), &Quiet).unwrap();
+    let (_tmp, dir, g) = small_world_parts(400, 0.1, 5, 500);
     let opts = plumb::profile::ProfileOptions {
         distances: plumb::profile::Choice::Exact,
         clustering: plumb::profile::Choice::Exact,
@@ -575,4 +530,30 @@ fn sampled_clustering_and_hyperball_cover_at_the_nominal_rate() {
         covered.iter().all(|&c| c >= 51),
         "covered {covered:?} of 60"
     );
+}
+
+/// A Watts–Strogatz graph of degree 6 (n nodes, rewiring p, seeded) written as parts of `chunk`
+/// lines in a temporary folder, and the graph they make.
+fn small_world_parts(
+    n: u32,
+    p: f64,
+    seed: u64,
+    chunk: usize,
+) -> (
+    tempfile::TempDir,
+    std::path::PathBuf,
+    plumb::store::graph::Graph,
+) {
+    let tmp = tempfile::tempdir().unwrap();
+    let dir = tmp.path().join("ws");
+    std::fs::create_dir(&dir).unwrap();
+    let model = plumb::models::generate::Model::WattsStrogatz { n, k: 6, p };
+    let mut lines = Vec::new();
+    plumb::models::generate::stream(&model, seed, &mut |a, b| lines.push(format!("{a} {b}")))
+        .unwrap();
+    for (k, part) in lines.chunks(chunk).enumerate() {
+        std::fs::write(dir.join(format!("p{k}.txt")), part.join("\n")).unwrap();
+    }
+    let g = plumb::store::load::load(&dir, &LoadOptions::default(), &Quiet).unwrap();
+    (tmp, dir, g)
 }
