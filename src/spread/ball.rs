@@ -9,7 +9,7 @@
 use xxhash_rust::xxh3::xxh3_64_with_seed;
 
 use super::exchange::{Parcel, Rounds};
-use super::work::{Owned, owner};
+use super::owned::{Owned, owner};
 use crate::estimate::hll::{count, register_of};
 use crate::estimate::hyperball::{BallOptions, run_seed};
 use crate::numeric::ExactSum;

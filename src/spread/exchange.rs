@@ -208,6 +208,21 @@ impl<'w> Rounds<'w> {
         self.inbox.borrow_mut().remove(&round).unwrap_or_default()
     }
 
+    /// Every worker's vector, summed element by element on every worker.
+    pub(crate) fn all_sum(&mut self, mine: Vec<u128>) -> Vec<u128> {
+        let peers = self.peers();
+        let got = self.round((0..peers).map(|_| mine.clone()).collect(), Parcel::Sums);
+        let mut total = vec![0u128; mine.len()];
+        for p in got {
+            if let Parcel::Sums(v) = p {
+                for (a, b) in total.iter_mut().zip(v) {
+                    *a += b;
+                }
+            }
+        }
+        total
+    }
+
     /// Every worker says whether it has more to do; true when any has.
     pub(crate) fn any(&mut self, more: bool) -> bool {
         let peers = self.peers();

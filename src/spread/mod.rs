@@ -12,6 +12,7 @@
 
 mod ball;
 mod exchange;
+mod owned;
 mod sampling;
 mod work;
 

@@ -18,7 +18,7 @@ use rand_distr::{Distribution, Poisson};
 use serde::{Deserialize, Serialize};
 
 use super::exchange::{Parcel, Rounds};
-use super::work::{Owned, mix, owner};
+use super::owned::{Owned, mix, owner};
 use crate::estimate::wedges::{Margin, pair_below};
 use crate::exact::clustering::wedges_at;
 
@@ -74,21 +74,6 @@ impl Target {
 /// The C(k) bin of degree `d` >= 2, as the single-machine estimator numbers them.
 pub(crate) fn bin_of(d: u32) -> u8 {
     (31 - d.leading_zeros()) as u8 - 1
-}
-
-/// Every worker's vector, summed element by element on every worker.
-pub(crate) fn all_sum(x: &mut Rounds, mine: Vec<u128>) -> Vec<u128> {
-    let peers = x.peers();
-    let got = x.round((0..peers).map(|_| mine.clone()).collect(), Parcel::Sums);
-    let mut total = vec![0u128; mine.len()];
-    for p in got {
-        if let Parcel::Sums(v) = p {
-            for (a, b) in total.iter_mut().zip(v) {
-                *a += b;
-            }
-        }
-    }
-    total
 }
 
 /// Draws of node `id` for one target and stage: Poisson with mean `mu`. Small means invert a
@@ -178,7 +163,7 @@ fn stage(
         .zip(&samples)
         .flat_map(|(&c, &s)| [c as u128, s as u128])
         .collect();
-    all_sum(x, mine)
+    x.all_sum(mine)
         .chunks(2)
         .map(|c| (c[0] as u64, c[1] as u64))
         .collect()
@@ -204,7 +189,7 @@ pub(crate) fn run(
             weight[t] += target.weight(d, giant);
         }
     }
-    let weight = all_sum(x, weight);
+    let weight = x.all_sum(weight);
     let margin_of = |t: &Target| match t.aim {
         Aim::Bin(_) => bin_margin,
         _ => margin,
@@ -229,7 +214,8 @@ pub(crate) fn run(
             }
         })
         .collect();
-    let mut rounds = 4;
+    // The weights' sum, then each stage's draws and their sum.
+    let mut rounds = 3;
     let second = if more.iter().any(|&r| r > 0.0) {
         rounds += 2;
         stage(x, owned, in_giant, &targets, &more, 1, seed)

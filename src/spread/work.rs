@@ -5,6 +5,7 @@
 use std::path::{Path, PathBuf};
 
 use super::exchange::{Parcel, Rounds, Wedge};
+use super::owned::{Owned, mix, owner};
 use super::sampling::{self, Aim, Target};
 use super::{ComponentTally, Partial, SpreadClustering, SpreadDistances, SpreadOptions, ball};
 use crate::error::{Error, ErrorClass, Result};
@@ -18,43 +19,6 @@ use crate::store::load::LoadOptions;
 /// Open wedges a worker sends in one round of the triangle count: bounds the round's buffers
 /// (24 bytes a wedge, once sent and once received).
 const WEDGES_PER_ROUND: usize = 1 << 23;
-
-/// The worker that owns node `id` among `peers` (a fixed mix, so every process agrees).
-pub(crate) fn owner(id: u64, peers: usize) -> usize {
-    (mix(id) % peers as u64) as usize
-}
-
-pub(crate) fn mix(mut x: u64) -> u64 {
-    // splitmix64's finaliser (Steele, Lea & Flood 2014): consecutive ids spread evenly.
-    x = (x ^ (x >> 30)).wrapping_mul(0xbf58_476d_1ce4_e5b9);
-    x = (x ^ (x >> 27)).wrapping_mul(0x94d0_49bb_1331_11eb);
-    x ^ (x >> 31)
-}
-
-/// The adjacency of the nodes a worker owns, ids ascending.
-pub(crate) struct Owned {
-    pub(crate) nodes: Vec<u64>,
-    pub(crate) offsets: Vec<usize>,
-    pub(crate) targets: Vec<u64>,
-    /// The degree of `targets[i]`.
-    pub(crate) target_degrees: Vec<u32>,
-    /// Where `targets[i]` sits among its owner's nodes.
-    pub(crate) target_slots: Vec<u32>,
-}
-
-impl Owned {
-    pub(crate) fn degree(&self, i: usize) -> u32 {
-        (self.offsets[i + 1] - self.offsets[i]) as u32
-    }
-
-    pub(crate) fn neighbours(&self, i: usize) -> &[u64] {
-        &self.targets[self.offsets[i]..self.offsets[i + 1]]
-    }
-
-    fn index_of(&self, id: u64) -> Option<usize> {
-        self.nodes.binary_search(&id).ok()
-    }
-}
 
 /// Read this worker's parts: the graph they make (with each edge's directions, for the
 /// cleaning counts), or `None` when it has no parts or they hold no lines. `text` reads every
@@ -189,7 +153,7 @@ pub(crate) fn run(
     // Round: one text id anywhere makes every id text, kept as written ("007" is not "7"),
     // as on one machine; shares read as integers are read again.
     let is_text = |s: &Option<Graph>| s.as_ref().is_some_and(|g| g.ids.kind() == IdKind::Text);
-    let text = sampling::all_sum(x, vec![u128::from(is_text(&share))])[0] > 0;
+    let text = x.all_sum(vec![u128::from(is_text(&share))])[0] > 0;
     if text {
         let again = if share.is_some() && !is_text(&share) {
             read_share(shown, &mine, load, true)
@@ -362,7 +326,7 @@ pub(crate) fn run(
         .iter()
         .map(|&l| giant.is_some_and(|g| g.1 == l))
         .collect();
-    let whole = sampling::all_sum(x, vec![partial.nodes as u128])[0] as u64;
+    let whole = x.all_sum(vec![partial.nodes as u128])[0] as u64;
     let connected = giant.is_none_or(|g| g.0 == whole);
     partial.giant_nodes = giant.map_or(0, |g| g.0);
     for (i, _) in in_giant.iter().enumerate().filter(|g| *g.1) {
