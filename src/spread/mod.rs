@@ -656,87 +656,86 @@ fn assemble(
     } else {
         format!("giant component ({} of {n} nodes)", components.giant_nodes)
     };
-    let distances = if !all.ball_runs.is_empty() {
-        let SpreadDistances::Ball(o) = &want.distances else {
-            unreachable!("HyperBall runs only when asked for")
-        };
-        let opts = BallOptions {
-            level: want.level,
-            seed: want.seed,
-            ..*o
-        };
-        let runs: Vec<Vec<f64>> = all
-            .ball_runs
-            .iter()
-            .map(|r| r.iter().map(ExactSum::value).collect())
-            .collect();
-        let e = crate::estimate::hyperball::from_runs(runs, &opts);
-        stages.push(Stage {
-            name: StageName::HyperBall,
-            seconds: all.distance_seconds,
-        });
-        let method = format!(
-            "HyperBall, {} registers per node × {} hash seeds (each counter ±{:.1}% relative \
+    let distances = match &want.distances {
+        SpreadDistances::Ball(o) if !all.ball_runs.is_empty() => {
+            let opts = BallOptions {
+                level: want.level,
+                seed: want.seed,
+                ..*o
+            };
+            let runs: Vec<Vec<f64>> = all
+                .ball_runs
+                .iter()
+                .map(|r| r.iter().map(ExactSum::value).collect())
+                .collect();
+            let e = crate::estimate::hyperball::from_runs(runs, &opts);
+            stages.push(Stage {
+                name: StageName::HyperBall,
+                seconds: all.distance_seconds,
+            });
+            let method = format!(
+                "HyperBall, {} registers per node × {} hash seeds (each counter ±{:.1}% relative \
              standard error), one exchange round per step",
-            e.registers,
-            opts.repeats,
-            100.0 * e.counter_rse
-        );
-        plan.push(Decision {
-            group: Group::Distances,
-            method,
-            exact_seconds: 0.0,
-            predicted_seconds: None,
-            budget_seconds: None,
-            reason: "HyperBall was asked for".into(),
-        });
-        Distances::Estimated(Box::new(EstimatedDistances {
-            node_set: distance_node_set.clone(),
-            nodes: all.giant_nodes,
-            mean: e.mean,
-            effective_diameter: e.effective_diameter,
-            distribution: e.distribution,
-            unreachable_pairs_in_graph: unreachable_pairs(&all.components, n),
-            sources: None,
-            registers: Some(e.registers),
-            counter_rse: Some(e.counter_rse),
-        }))
-    } else if all.sources > 0 {
-        stages.push(Stage {
-            name: StageName::SampledDistances,
-            seconds: all.distance_seconds,
-        });
-        let s = crate::estimate::distance::summarise(
-            all.giant_nodes,
-            &all.per_source,
-            want.level,
-            want.seed,
-        );
-        plan.push(Decision {
-            group: Group::Distances,
-            method: format!(
-                "BFS from {} sampled sources, {} at a time, one frontier round per level",
-                s.sources,
-                s.sources.min(64)
-            ),
-            exact_seconds: 0.0,
-            predicted_seconds: None,
-            budget_seconds: None,
-            reason: "a distributed profile always samples its sources".into(),
-        });
-        Distances::Estimated(Box::new(EstimatedDistances {
-            node_set: distance_node_set.clone(),
-            nodes: s.nodes,
-            mean: s.mean,
-            effective_diameter: s.effective_diameter,
-            distribution: s.distribution,
-            unreachable_pairs_in_graph: unreachable_pairs(&all.components, n),
-            sources: Some(s.sources),
-            registers: None,
-            counter_rse: None,
-        }))
-    } else {
-        Distances::NotRequested
+                e.registers,
+                opts.repeats,
+                100.0 * e.counter_rse
+            );
+            plan.push(Decision {
+                group: Group::Distances,
+                method,
+                exact_seconds: 0.0,
+                predicted_seconds: None,
+                budget_seconds: None,
+                reason: "HyperBall was asked for".into(),
+            });
+            Distances::Estimated(Box::new(EstimatedDistances {
+                node_set: distance_node_set.clone(),
+                nodes: all.giant_nodes,
+                mean: e.mean,
+                effective_diameter: e.effective_diameter,
+                distribution: e.distribution,
+                unreachable_pairs_in_graph: unreachable_pairs(&all.components, n),
+                sources: None,
+                registers: Some(e.registers),
+                counter_rse: Some(e.counter_rse),
+            }))
+        }
+        _ if all.sources > 0 => {
+            stages.push(Stage {
+                name: StageName::SampledDistances,
+                seconds: all.distance_seconds,
+            });
+            let s = crate::estimate::distance::summarise(
+                all.giant_nodes,
+                &all.per_source,
+                want.level,
+                want.seed,
+            );
+            plan.push(Decision {
+                group: Group::Distances,
+                method: format!(
+                    "BFS from {} sampled sources, {} at a time, one frontier round per level",
+                    s.sources,
+                    s.sources.min(64)
+                ),
+                exact_seconds: 0.0,
+                predicted_seconds: None,
+                budget_seconds: None,
+                reason: "a distributed profile always samples its sources".into(),
+            });
+            Distances::Estimated(Box::new(EstimatedDistances {
+                node_set: distance_node_set.clone(),
+                nodes: s.nodes,
+                mean: s.mean,
+                effective_diameter: s.effective_diameter,
+                distribution: s.distribution,
+                unreachable_pairs_in_graph: unreachable_pairs(&all.components, n),
+                sources: Some(s.sources),
+                registers: None,
+                counter_rse: None,
+            }))
+        }
+        _ => Distances::NotRequested,
     };
     let _ = seconds;
     let small_world = match (&distances, giant_clustering, all.components.giant) {

@@ -137,7 +137,7 @@ impl Default for LoadOptions {
 /// ```
 pub fn load(path: &Path, opts: &LoadOptions, progress: &dyn Progress) -> Result<Graph> {
     match source::list_parts(path)? {
-        Some(parts) => load_parts(path, &parts, None, opts, progress),
+        Some(parts) => load_parts(path, &parts, None, opts, progress, false),
         None => load_input(InputBytes::open(path)?, opts, progress),
     }
 }
@@ -158,7 +158,7 @@ pub fn pack(
     progress: &dyn Progress,
 ) -> Result<(Graph, u64)> {
     let g = match source::list_parts(path)? {
-        Some(parts) => load_parts(path, &parts, Some(dest), opts, progress)?,
+        Some(parts) => load_parts(path, &parts, Some(dest), opts, progress, false)?,
         None => load_to(InputBytes::open(path)?, Some(dest), opts, progress)?,
     };
     // Built on disk just now (not a store file given as input): the merge wrote `dest`.
@@ -244,22 +244,12 @@ pub(crate) fn load_paths(
     progress: &dyn Progress,
     text: bool,
 ) -> Result<Graph> {
-    load_parts_as(shown, paths, None, opts, progress, text)
+    load_parts(shown, paths, None, opts, progress, text)
 }
 
 /// Read the part files `paths` (plain, zstd or gzip edge lists, in this order) as one graph;
-/// `shown` is the folder or pattern as given.
+/// `shown` is the folder or pattern as given; `text` reads every id as text.
 fn load_parts(
-    shown: &Path,
-    paths: &[std::path::PathBuf],
-    dest: Option<&Path>,
-    opts: &LoadOptions,
-    progress: &dyn Progress,
-) -> Result<Graph> {
-    load_parts_as(shown, paths, dest, opts, progress, false)
-}
-
-fn load_parts_as(
     shown: &Path,
     paths: &[std::path::PathBuf],
     dest: Option<&Path>,
